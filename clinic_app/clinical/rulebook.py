@@ -43,3 +43,14 @@ SOURCES: dict[str, str] = {
     "WHO-MGRS-2006": "WHO Child Growth Standards 2006, LMS tables and anthro z-score method (SD23 rule)",
     "PRACTICE": "Common practice, no published source",
 }
+
+# Owned by the "core" helper: classification, danger signs, plans A/B/C, NG, IV, zinc,
+# SAM cut-offs and ReSoMal schedule, cholera, dysentery, persistent diarrhoea, messages,
+# rounding precision, input limits.
+_CORE: dict = {}
+
+# Owned by the "growth" helper: z-score flags, Holliday-Segar, 4-2-1, weight-from-age,
+# TBW fractions, free-water deficit, CDS/Gorelick/DHAKA definitions and bands.
+_GROWTH_SCORES_FLUIDS: dict = {}
+
+RULES: dict = {**_CORE, **_GROWTH_SCORES_FLUIDS}
