@@ -1,0 +1,65 @@
+# Rehydration Desk — one task runner. `make help` lists the targets.
+SHELL := /bin/bash
+.DEFAULT_GOAL := help
+VENV := .venv
+PY := $(VENV)/bin/python
+FLASK := $(VENV)/bin/flask --app clinic_app
+HOST ?= 127.0.0.1
+PORT ?= 8000
+# Debian packages: Pango for WeasyPrint, Chromium for browser tests, poppler for PDF checks,
+# NSS tools for the TLS browser test, Node.js for the JavaScript engine tests.
+APT_PACKAGES := libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b fonts-dejavu-core \
+	chromium poppler-utils libnss3-tools nodejs
+STAMP := $(VENV)/.installed
+
+.PHONY: help setup run test test-py test-js lint translations-extract translations-update \
+	translations-compile screenshots bench
+
+help: ## List the targets
+	@grep -E '^[a-z-]+:.*## ' $(MAKEFILE_LIST) | awk -F':.*## ' '{printf "  %-22s %s\n", $$1, $$2}'
+
+setup: system-packages $(STAMP) translations-compile ## Install everything the app and tests need (idempotent)
+
+.PHONY: system-packages
+system-packages:
+	@missing=$$(for p in $(APT_PACKAGES); do dpkg -s $$p >/dev/null 2>&1 || echo $$p; done); \
+	if [ -n "$$missing" ]; then \
+	  echo "Installing Debian packages:" $$missing; \
+	  SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); \
+	  $$SUDO apt-get update -qq && \
+	  DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -qq --no-install-recommends $$missing; \
+	fi
+
+$(STAMP): pyproject.toml
+	@test -x $(PY) || python3 -m venv $(VENV)
+	$(PY) -m pip install -q --upgrade pip
+	$(PY) -m pip install -q -e '.[test]'
+	@touch $(STAMP)
+
+translations-compile: $(STAMP) ## Compile the .po catalogs to .mo and export JSON catalogs
+	@if ls translations/*/LC_MESSAGES/messages.po >/dev/null 2>&1; then \
+	  $(VENV)/bin/pybabel compile -q -d translations -f; fi
+
+translations-extract: $(STAMP) ## Extract translatable strings into translations/messages.pot
+	$(VENV)/bin/pybabel extract -q -F babel.cfg --add-comments=I18N: -k lazy_gettext \
+	  -o translations/messages.pot .
+
+translations-update: translations-extract ## Merge new strings into every catalog
+	$(VENV)/bin/pybabel update -q -i translations/messages.pot -d translations --no-fuzzy-matching
+
+run: setup ## Serve the app on http://127.0.0.1:8000 with the demo clinic
+	@$(FLASK) init-db
+	@$(FLASK) seed-demo
+	@$(FLASK) serve --host $(HOST) --port $(PORT)
+
+test: setup ## Run the whole test suite (lint, Python, JavaScript, browser)
+	$(MAKE) --no-print-directory lint
+	$(VENV)/bin/pytest -q -p no:cacheprovider
+	$(MAKE) --no-print-directory test-js
+
+test-js: ## Run the JavaScript engine tests with node --test
+	@if ls tests/js/*.test.mjs >/dev/null 2>&1; then node --test tests/js/; \
+	else echo "no JavaScript tests yet"; fi
+
+lint: $(STAMP) ## Ruff over the whole tree
+	$(VENV)/bin/ruff check clinic_app tests bench
