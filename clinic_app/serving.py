@@ -1,0 +1,100 @@
+"""Checks run before the server starts, and the cheroot server itself (plain or TLS).
+
+Why the address check binds a socket: the operating system's own ``bind()`` is the authority on
+which addresses belong to this machine. Binding to an address that no interface holds fails with
+EADDRNOTAVAIL on Linux ("Cannot assign requested address") and WSAEADDRNOTAVAIL (10049, "The
+requested address is not valid in its context") on Windows. That is exactly the check the real
+server's ``bind()`` will make, with no parsing of ``ip``/``ipconfig`` output (whose wording is
+localised on Windows) and no extra package. Port 0 lets the kernel pick a free port, so the probe
+never collides with a port in use, and nothing is left listening. The one exception is a Linux
+box configured with ``net.ipv4.ip_nonlocal_bind=1`` (rare on a clinic laptop), where any address
+binds; the real server would then start and simply never receive traffic.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import errno
+import ipaddress
+import socket
+
+from clinic_app import tls
+
+# 10049: WSAEADDRNOTAVAIL on Windows; EAFNOSUPPORT: a machine without IPv6 has no IPv6 address.
+_NOT_LOCAL = {errno.EADDRNOTAVAIL, errno.EAFNOSUPPORT, 10049}
+
+
+class ServeError(Exception):
+    """The server must not start; the message tells the operator why and what to do."""
+
+
+def address_is_local(ip: str) -> bool:
+    """True when ``ip`` is assigned to one of this machine's network interfaces."""
+    address = ipaddress.ip_address(ip)
+    family = socket.AF_INET6 if address.version == 6 else socket.AF_INET
+    try:
+        with socket.socket(family, socket.SOCK_STREAM) as probe:
+            probe.bind((str(address), 0))
+    except OSError as exc:
+        if exc.errno in _NOT_LOCAL or getattr(exc, "winerror", None) in _NOT_LOCAL:
+            return False
+        raise
+    return True
+
+
+def require_local_address(host: str) -> str:
+    """Refuse (ServeError) a host that is not one fixed IP address held by this machine."""
+    try:
+        address = ipaddress.ip_address(host)
+    except ValueError:
+        raise ServeError(
+            f"HOST is {host!r}. Set it to the laptop's fixed IP address (for example "
+            "192.168.1.10): phones reach the app by that address, and it is part of the "
+            "app's origin."
+        ) from None
+    if address.is_unspecified:
+        raise ServeError(
+            f"HOST is {host}, which means every interface. Set it to the laptop's fixed IP "
+            "address, the one the certificate and the phones use."
+        )
+    if not address_is_local(str(address)):
+        raise ServeError(
+            f"This computer has no network interface with the address {address}. Phones look "
+            "for the app at that fixed address: check that the laptop is connected to the clinic "
+            "Wi-Fi and that its address is still reserved (or set statically), then start again."
+        )
+    return str(address)
+
+
+def require_certificate_for(host: str, instance_dir: str, now: dt.datetime) -> tls.TLSPaths:
+    """Refuse (ServeError) to serve HTTPS without a valid server certificate for ``host``."""
+    paths = tls.TLSPaths.for_instance(instance_dir)
+    if not paths.server_cert.exists() or not paths.server_key.exists():
+        raise ServeError(
+            "There is no server certificate yet. Run "
+            f"'flask --app clinic_app tls init --ip {host}' first."
+        )
+    ips, _names = tls.server_addresses(paths.server_cert)
+    if ipaddress.ip_address(host) not in ips:
+        covered = ", ".join(str(ip) for ip in ips)
+        raise ServeError(
+            f"The server certificate is for {covered}, not {host}; phones would refuse it. "
+            "Serve on the certificate's address, or issue a certificate for this one."
+        )
+    if tls.days_until_expiry(paths.server_cert, now) < 0:
+        raise ServeError(
+            "The server certificate has expired. Run 'flask --app clinic_app tls renew'."
+        )
+    return paths
+
+
+def make_server(app, host: str, port: int, *, threads: int = 8, paths: tls.TLSPaths | None = None):
+    """A threaded cheroot WSGI server; HTTPS with cheroot's builtin TLS adapter when ``paths``."""
+    from cheroot import wsgi
+
+    server = wsgi.Server((host, port), app, numthreads=threads)
+    if paths is not None:
+        from cheroot.ssl.builtin import BuiltinSSLAdapter
+
+        server.ssl_adapter = BuiltinSSLAdapter(str(paths.server_cert), str(paths.server_key))
+    return server
