@@ -7,9 +7,10 @@ FLASK := $(VENV)/bin/flask --app clinic_app
 HOST ?= 127.0.0.1
 PORT ?= 8000
 # Debian packages: Pango for WeasyPrint, Chromium for browser tests, poppler for PDF checks,
-# NSS tools for the TLS browser test, Node.js for the JavaScript engine tests.
+# NSS tools for the TLS browser test, Node.js for the JavaScript engine tests,
+# R's surveillance package as the outside oracle for the EARS C1/C2 test.
 APT_PACKAGES := libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b fonts-dejavu-core \
-	chromium poppler-utils libnss3-tools nodejs
+	chromium poppler-utils libnss3-tools nodejs r-cran-surveillance
 STAMP := $(VENV)/.installed
 
 .PHONY: help setup run test test-py test-js lint translations-extract translations-update \
