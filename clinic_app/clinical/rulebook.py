@@ -10,6 +10,13 @@ values: the JSON export (``rulebook_json``) is what the phone applies.
 
 from __future__ import annotations
 
+import hashlib
+import json
+from dataclasses import asdict
+from functools import lru_cache
+
+from .types import ClinicSettings
+
 SOURCES: dict[str, str] = {
     "S01": "WHO 2005, The treatment of diarrhoea: a manual for physicians and other senior health workers, 4th rev.",
     "S02": "Summaries of WHO 2005 dehydration management (WHO scale, Plans A, B, C)",
@@ -210,10 +217,6 @@ _CORE: dict = {
         "note": "Referral when the IV facility can be reached in LESS than 30 minutes (S04 wording).",
     },
     "plan_c_ng": {"ml_per_kg_per_hour": 20, "hours": 6, "source": "S14"},
-    "plan_c_ng_monitoring": {
-        "source": "S04", "status": "unconfirmed",
-        "label": "nasogastric rehydration: reassess every 1-2 hours, send for IV if not improving after 3 hours",
-    },
     # --- Zinc ------------------------------------------------------------------------------------
     "zinc": {
         "source": "S04",
@@ -226,10 +229,6 @@ _CORE: dict = {
     },
     # --- Other classifications -----------------------------------------------------------------
     "persistent_diarrhoea": {"min_days": 14, "source": "S08"},
-    "persistent_diarrhoea_follow_up": {
-        "source": "S04", "status": "unconfirmed",
-        "label": "persistent diarrhoea: feeding advice and follow-up in 5 days",
-    },
     "dysentery": {"source": "S07", "note": "Antibiotic text is the clinic's dysentery_policy_text setting (conflict C17).",
                   "refer_if": ["young_infant", "severe_acute_malnutrition"]},
     "cholera": {
@@ -258,6 +257,8 @@ _CORE: dict = {
         "note": "WHO, conflict C11. In SAM all children with watery diarrhoea are treated as dehydrated (S08).",
         "first_ml_per_kg": 5, "first_interval_minutes": 30, "first_hours": 2,
         "then_ml_per_kg_per_hour_low": 5, "then_ml_per_kg_per_hour_high": 10, "max_hours": 12,
+        "home_ors_ml_per_day": 0,
+        "home_ors_note": "Standard ORS is not suitable in SAM (S08): no home ORS supply.",
     },
     "sam_shock_iv": {
         "source": "S20", "ml_per_kg": 15, "minutes": 60,
@@ -278,8 +279,9 @@ _CORE: dict = {
             {"max_age_months": None, "min_kg": 20, "max_kg": 250},
         ],
     },
-    "hypernatraemia": {"refer_above_mmol_l": 150, "fall_per_day_low": 10, "fall_per_day_high": 12,
-                       "source": "S31", "note": "Conflict C18; information only, a CHW refers."},
+    "hypernatraemia": {"refer_above_mmol_l": 150, "source": "S31",
+                       "note": "Conflict C18; a CHW refers (routine at least); the safe fall per day is RULES['sodium_max_fall_mmol_l_per_day']."},
+    "ml_per_litre": {"value": 1000, "source": "PRACTICE", "note": "unit conversion"},
     # --- Output ordering and texts ---------------------------------------------------------------
     "refer_levels": {"source": "PRACTICE", "order": ["none", "routine", "urgent"]},
     "classification_order": {"source": "PRACTICE", "order": [
@@ -318,7 +320,7 @@ _CORE: dict = {
             "plan_c_refer_iv_facility": {"source": "S04", "text": "No IV here: refer URGENTLY to the IV facility{facility}. Give the mother ORS and show her how to give frequent sips on the way."},
             "plan_c_ng": {"source": "S14", "text": "Give ORS by nasogastric tube: {ml_per_hour} ml per hour for {hours} hours ({total_ml} ml in all). If there is repeated vomiting or abdominal distension, give it more slowly."},
             "plan_c_ng_per_kg": {"source": "S14", "text": "Give ORS by nasogastric tube: {ml_per_kg_per_hour} ml/kg per hour for {hours} hours. Weigh the patient to work out the volumes. If there is repeated vomiting or abdominal distension, give it more slowly."},
-            "plan_c_ng_monitor": {"source": "S04", "text": "Reassess every 1-2 hours. If not improving after 3 hours, send the child for IV therapy."},
+            "plan_c_ng_monitor": {"source": "S04", "status": "unconfirmed", "label": "nasogastric rehydration: reassess every 1-2 hours, send for IV if not improving after 3 hours", "text": "Reassess every 1-2 hours. If not improving after 3 hours, send the child for IV therapy."},
             "plan_c_refer": {"source": "S04", "text": "Refer URGENTLY to hospital for IV or nasogastric treatment{facility}. If the child can drink, give frequent sips of ORS on the way."},
             "plan_c_reassess": {"source": "S02", "text": "Reassess after {hours} hours and choose Plan A, B or C."},
             "plan_b_weight_row": {"source": "S04", "text": "Give {total_ml} ml of ORS over {hours} hours ({ml_per_kg} ml/kg). The {table} table gives {low_ml}-{high_ml} ml for this weight."},
@@ -335,7 +337,7 @@ _CORE: dict = {
             "dysentery_refer": {"source": "S08", "status": "unconfirmed", "label": "dysentery in a young infant or a child with SAM: admit", "text": "Dysentery in a young infant or a child with severe acute malnutrition: refer URGENTLY for admission{facility}."},
             "dysentery_policy": {"source": "S07", "text": "Dysentery: {policy_text} Follow up in 2 days."},
             "severe_persistent_refer": {"source": "S04", "text": "Severe persistent diarrhoea: treat the dehydration first, then refer to hospital{facility}."},
-            "persistent_feeding": {"source": "S04", "text": "Persistent diarrhoea: give feeding advice for persistent diarrhoea and follow up in 5 days."},
+            "persistent_feeding": {"source": "S04", "status": "unconfirmed", "label": "persistent diarrhoea: feeding advice and follow-up in 5 days", "text": "Persistent diarrhoea: give feeding advice for persistent diarrhoea and follow up in 5 days."},
             "young_infant_refer_urgent": {"source": "S07", "text": "Young infant (under 2 months) with dehydration, diarrhoea for 14 days or more, or blood in the stool: refer URGENTLY{facility}."},
             "young_infant_refer_routine": {"source": "S07", "text": "Young infant (under 2 months) with diarrhoea: refer for assessment{facility}."},
             "cholera_antibiotic": {"source": "S10", "text": "Suspected cholera, aged 2 years or more, with severe dehydration and cholera in the area: give the oral antibiotic for cholera set by national policy."},
@@ -400,6 +402,186 @@ _GROWTH_SCORES_FLUIDS: dict = {
                           "note": "half-up: floor(z * 100 + 0.5) / 100"},
     "growth_waz_implausible": {"below": -6, "above": 5, "source": "WHO-MGRS-2006"},
     "growth_wflh_implausible_abs_z": {"value": 5, "source": "WHO-MGRS-2006"},
+    # --- Published dehydration scores (clinical/scores.py). Items: {item: {finding: points}};
+    # bands: inclusive score ranges; age_months: validated range [min, below). ---
+    "score_cds": {
+        "source": "S23",
+        "name": "Clinical Dehydration Scale",
+        "items": {
+            "source": "S23",
+            "points": {
+                "general_appearance": {"normal": 0, "thirsty_restless_or_lethargic_but_irritable": 1,
+                                       "drowsy_limp_cold_sweaty_or_comatose": 2},
+                "eyes": {"normal": 0, "slightly_sunken": 1, "very_sunken": 2},
+                "mucous_membranes": {"moist": 0, "sticky": 1, "dry": 2},
+                "tears": {"tears": 0, "decreased": 1, "absent": 2},
+            },
+        },
+        "bands": {"source": "S22", "rows": [
+            {"min": 0, "max": 0, "band": "no_dehydration"},
+            {"min": 1, "max": 4, "band": "some_dehydration"},
+            {"min": 5, "max": 8, "band": "moderate_severe_dehydration"},
+        ]},
+        "age_months": {"min": 1, "below": 60, "text": "1 to 59 months", "source": "S22",
+                       "note": "C16: derived at 1-36 months (S21), validated at 1 month-5 years (S22)"},
+    },
+    "score_gorelick": {
+        "source": "S24",
+        "name": "Gorelick dehydration scale",
+        "items": {
+            "source": "S24",
+            "points": {
+                "general_appearance": {"normal": 0, "restless_lethargic_or_unconscious": 1},
+                "capillary_refill": {"up_to_2_s": 0, "over_2_s": 1},
+                "tears": {"present": 0, "absent": 1},
+                "mucous_membranes": {"moist": 0, "dry": 1},
+                "eyes": {"normal": 0, "sunken": 1},
+                "skin_elasticity": {"normal": 0, "decreased": 1},
+                "respirations": {"normal": 0, "deep": 1},
+                "radial_pulse": {"normal": 0, "weak_or_impalpable": 1},
+                "heart_rate": {"up_to_150": 0, "over_150": 1},
+                "urine_output": {"normal": 0, "decreased_or_absent": 1},
+            },
+        },
+        "four_item_names": {"source": "S24", "value": ["general_appearance", "capillary_refill",
+                                                       "tears", "mucous_membranes"]},
+        "bands_10": {"source": "S24", "status": "unconfirmed",
+                     "note": "cut-offs 3 and 7 from memory of Gorelick 1997",
+                     "rows": [
+                         {"min": 0, "max": 2, "band": "dehydration_under_5_percent"},
+                         {"min": 3, "max": 6, "band": "dehydration_5_percent_or_more"},
+                         {"min": 7, "max": 10, "band": "dehydration_10_percent_or_more"},
+                     ]},
+        "bands_4": {"source": "S24", "status": "unconfirmed",
+                    "note": "cut-off 2 from memory of Gorelick 1997",
+                    "rows": [
+                        {"min": 0, "max": 1, "band": "dehydration_under_5_percent"},
+                        {"min": 2, "max": 4, "band": "dehydration_5_percent_or_more"},
+                    ]},
+        "age_months": {"min": 1, "below": 60, "text": "1 month to 5 years", "source": "S24",
+                       "status": "unconfirmed", "note": "study population from memory"},
+    },
+    "score_dhaka": {
+        "source": "S25",
+        "name": "DHAKA dehydration score",
+        "items": {
+            "source": "S25", "status": "unconfirmed",
+            "note": "the four items are verified; the point weights are from memory",
+            "points": {
+                "general_appearance": {"normal": 0, "restless_or_irritable": 2,
+                                       "lethargic_or_unconscious": 4},
+                "respirations": {"normal": 0, "deep": 2},
+                "skin_pinch": {"normal": 0, "slow": 2, "very_slow": 4},
+                "tears": {"normal": 0, "decreased": 1, "absent": 2},
+            },
+        },
+        "bands": {"source": "S25", "status": "unconfirmed", "note": "bands from memory",
+                  "rows": [
+                      {"min": 0, "max": 1, "band": "no_dehydration"},
+                      {"min": 2, "max": 3, "band": "some_dehydration"},
+                      {"min": 4, "max": 12, "band": "severe_dehydration"},
+                  ]},
+        "age_months": {"min": 0, "below": 60, "text": "under 5 years", "source": "S25"},
+    },
+    "score_messages": {
+        "source": "PRACTICE",
+        "texts": {
+            "outside_age": "The {name} was validated for children aged {ages}; this child is "
+                           "outside that range, so the score may not apply.",
+            "unconfirmed": "Some numbers of the {name} ({parts}) are not yet confirmed against "
+                           "the published paper.",
+            "invalid_item": "Must be one of: {choices}.",
+            "not_object": "Must be an object with the scale's items.",
+            "unknown_item": "This item is not part of the {name}.",
+            "unknown_scale": "Unknown scale; use one of: {choices}.",
+        },
+    },
+    # --- Fluids and weights (clinical/fluids.py) ---
+    "maintenance_holliday_segar": {
+        "source": "S26",
+        "band_upper_kg": [10, 20],
+        "ml_per_kg_per_day": [100, 50, 20],
+        "ml_per_kg_per_hour": [4, 2, 1],
+        "note": "C10: daily and 4-2-1 hourly forms give different totals; name the form",
+    },
+    "maintenance_above_20kg_variant_ml_per_kg": {
+        "value": 25, "source": "S08", "status": "unconfirmed",
+        "note": "25 ml/kg above 20 kg is reproduced in a secondary text citing national guidance; "
+                "the attribution to the WHO Pocket book is from memory (C10)",
+    },
+    "weight_from_age": {
+        "source": "S29",
+        "age_in_years": {"source": "PRACTICE", "note": "years = months / 12, not completed years"},
+        "methods": {
+            "apls_updated": {"source": "S29", "rows": [
+                {"min_months": 0, "below_months": 12, "per": "month", "factor": 0.5, "add": 4,
+                 "formula": "0.5 x age in months + 4"},
+                {"min_months": 12, "below_months": 72, "per": "year", "factor": 2, "add": 8,
+                 "formula": "2 x age in years + 8"},
+                {"min_months": 72, "below_months": 156, "per": "year", "factor": 3, "add": 7,
+                 "formula": "3 x age in years + 7", "status": "unconfirmed",
+                 "note": "band edges 6-12 years from memory"},
+            ]},
+            "apls_classic": {"source": "S29", "rows": [
+                {"min_months": 12, "below_months": 132, "per": "year", "factor": 2, "add": 8,
+                 "formula": "(age in years + 4) x 2"},
+            ]},
+            "best_guess": {"source": "S29", "rows": [
+                {"min_months": 0, "below_months": 12, "per": "month", "factor": 0.5, "add": 4.5,
+                 "formula": "(age in months + 9) / 2"},
+                {"min_months": 12, "below_months": 60, "per": "year", "factor": 2, "add": 10,
+                 "formula": "2 x (age in years + 5)"},
+                {"min_months": 60, "below_months": 180, "per": "year", "factor": 4, "add": 0,
+                 "formula": "4 x age in years"},
+            ]},
+        },
+    },
+    "free_water_deficit": {
+        "source": "S31",
+        "normal_sodium_mmol_l": 140,
+        "formula": "TBW fraction x weight x (Na / 140 - 1), in litres",
+    },
+    "total_body_water_fraction": {
+        "source": "S31",
+        "age_edges": {"source": "PRACTICE",
+                      "note": "adult from 18 years, elderly from 65 years: common practice, no source"},
+        "rows": [
+            {"min_months": 0, "below_months": 12, "fraction": 0.7, "source": "S33",
+             "status": "unconfirmed",
+             "note": "modelling choice, not a guideline number: newborn about 0.75 falling to "
+                     "about 0.6 during the first year (S33)"},
+            {"min_months": 12, "below_months": 216, "fraction": 0.6, "source": "S31"},
+            {"min_months": 216, "below_months": 780, "female": 0.5, "male": 0.6, "source": "S31"},
+            {"min_months": 780, "below_months": None, "female": 0.45, "male": 0.5, "source": "S31"},
+        ],
+    },
+    "sodium_max_fall_mmol_l_per_day": {
+        "min": 10, "max": 12, "source": "S31",
+        "note": "C18: 10 mmol/L/day (adult literature), 12 mmol/L/day (paediatric guideline)",
+    },
 }
 
 RULES: dict = {**_CORE, **_GROWTH_SCORES_FLUIDS}
+
+
+def _canonical(obj: object) -> str:
+    return json.dumps(obj, sort_keys=True, separators=(",", ":"))
+
+
+def _body(settings: ClinicSettings) -> dict:
+    from . import growth  # growth reads RULES from this module, so import it late
+
+    return {"sources": SOURCES, "rules": RULES, "settings": asdict(settings),
+            "growth_tables": growth.tables_json()}
+
+
+@lru_cache(maxsize=64)
+def rulebook_version(settings: ClinicSettings) -> str:
+    """sha256 of the canonical JSON of sources, rules, settings and growth tables (cached)."""
+    return hashlib.sha256(_canonical(_body(settings)).encode("utf-8")).hexdigest()
+
+
+def rulebook_json(settings: ClinicSettings) -> dict:
+    """Everything the offline engine needs: {"version", "sources", "rules", "settings",
+    "growth_tables"}. The version changes with any rule, table or clinic setting."""
+    return {"version": rulebook_version(settings), **_body(settings)}
