@@ -105,3 +105,7 @@ def logout():
 @bp.get("/me")
 def me():
     return jsonify({"user": user_json(g.user), "csrf_token": generate_csrf()})
+
+
+# Route modules that extend this blueprint (imported last: they need `bp` defined above).
+from clinic_app.web import api_sync  # noqa: E402,F401
