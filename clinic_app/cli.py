@@ -80,8 +80,14 @@ def seed_demo_command():
 @click.option("--host", default=None, help="Address to listen on (config HOST).")
 @click.option("--port", default=None, type=int, help="Port (config PORT).")
 @click.option("--threads", default=8, show_default=True, help="Worker threads.")
-def serve_command(host, port, threads):
+@click.option("--tls", "use_tls", is_flag=True,
+              help="HTTPS on TLS_PORT with the clinic's certificate (docs/tls.md).")
+def serve_command(host, port, threads, use_tls):
     """Serve the app with cheroot, a threaded production WSGI server (Linux and Windows)."""
+    if use_tls or current_app.config["TLS"]:
+        from clinic_app.server_cli import serve_tls
+
+        return serve_tls(host, port, threads)
     from cheroot import wsgi
 
     host = host or current_app.config["HOST"]
@@ -99,3 +105,6 @@ def serve_command(host, port, threads):
 def init_app(app) -> None:
     for command in (init_db_command, add_user_command, seed_demo_command, serve_command):
         app.cli.add_command(command)
+    from clinic_app import server_cli
+
+    server_cli.register(app)  # tls, backup, restore (issue 8)

@@ -98,3 +98,48 @@ def make_server(app, host: str, port: int, *, threads: int = 8, paths: tls.TLSPa
 
         server.ssl_adapter = BuiltinSSLAdapter(str(paths.server_cert), str(paths.server_key))
     return server
+
+
+def origin(host: str, port: int, scheme: str = "https") -> str:
+    """The origin phones use, e.g. ``https://192.168.1.10:8443`` (IPv6 in brackets)."""
+    shown = f"[{host}]" if ":" in host else host
+    return f"{scheme}://{shown}:{port}"
+
+
+# The plain-HTTP server answers only these paths: the enrolment page, its certificate download
+# and the static files it uses. Everything else would be the app without TLS.
+ENROL_PREFIXES = ("/enrol", "/static/")
+
+
+def enrol_only(app):
+    """Wrap a WSGI app so that only the enrolment paths reach it; the rest redirect there."""
+
+    def wsgi(environ, start_response):
+        path = environ.get("PATH_INFO", "")
+        if path.startswith(ENROL_PREFIXES):
+            return app(environ, start_response)
+        start_response(
+            "302 Found",
+            [("Location", "/enrol"), ("Content-Length", "0"), ("Cache-Control", "no-store")],
+        )
+        return [b""]
+
+    return wsgi
+
+
+def daily_backup_loop(db_path, backup_dir, now, stop, log, interval: float = 3600) -> None:
+    """Take the daily backup when due, then check again every ``interval`` seconds until
+    ``stop`` is set. A failed backup is reported and retried; it never stops the server."""
+    import sqlite3
+
+    from clinic_app.storage.backup import BackupError, maybe_daily_backup
+
+    while True:
+        try:
+            made = maybe_daily_backup(db_path, backup_dir, now())
+            if made is not None:
+                log(f"Daily backup written to {made}")
+        except (BackupError, sqlite3.Error, OSError) as exc:
+            log(f"Daily backup failed: {exc}")
+        if stop.wait(interval):
+            return
