@@ -10,6 +10,15 @@ values: the JSON export (``rulebook_json``) is what the phone applies.
 
 from __future__ import annotations
 
+import hashlib
+import json
+from dataclasses import asdict
+from functools import lru_cache
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from .types import ClinicSettings
+
 SOURCES: dict[str, str] = {
     "S01": "WHO 2005, The treatment of diarrhoea: a manual for physicians and other senior health workers, 4th rev.",
     "S02": "Summaries of WHO 2005 dehydration management (WHO scale, Plans A, B, C)",
@@ -210,11 +219,9 @@ _CORE: dict = {
         "note": "Referral when the IV facility can be reached in LESS than 30 minutes (S04 wording).",
     },
     "plan_c_ng": {"ml_per_kg_per_hour": 20, "hours": 6, "source": "S14"},
-    "plan_c_ng_monitoring": {
-        "source": "S04", "status": "unconfirmed",
-        "label": "nasogastric rehydration: reassess every 1-2 hours, send for IV if not improving after 3 hours",
-    },
     # --- Zinc ------------------------------------------------------------------------------------
+    "zinc_days": {"min": 10, "max": 14, "source": "S15",
+                  "note": "Default of the clinic settings zinc_days_min/max (conflict C4)."},
     "zinc": {
         "source": "S04",
         "note": "IMCI wording (conflict C5): under 6.0 months 10 mg, from 6.0 months 20 mg. Upper limit: IMCI scope, under 5 years (no fixed WHO limit).",
@@ -226,10 +233,6 @@ _CORE: dict = {
     },
     # --- Other classifications -----------------------------------------------------------------
     "persistent_diarrhoea": {"min_days": 14, "source": "S08"},
-    "persistent_diarrhoea_follow_up": {
-        "source": "S04", "status": "unconfirmed",
-        "label": "persistent diarrhoea: feeding advice and follow-up in 5 days",
-    },
     "dysentery": {"source": "S07", "note": "Antibiotic text is the clinic's dysentery_policy_text setting (conflict C17).",
                   "refer_if": ["young_infant", "severe_acute_malnutrition"]},
     "cholera": {
@@ -258,6 +261,8 @@ _CORE: dict = {
         "note": "WHO, conflict C11. In SAM all children with watery diarrhoea are treated as dehydrated (S08).",
         "first_ml_per_kg": 5, "first_interval_minutes": 30, "first_hours": 2,
         "then_ml_per_kg_per_hour_low": 5, "then_ml_per_kg_per_hour_high": 10, "max_hours": 12,
+        "home_ors_ml_per_day": 0,
+        "home_ors_note": "Standard ORS is not suitable in SAM (S08): no home ORS supply.",
     },
     "sam_shock_iv": {
         "source": "S20", "ml_per_kg": 15, "minutes": 60,
@@ -278,8 +283,20 @@ _CORE: dict = {
             {"max_age_months": None, "min_kg": 20, "max_kg": 250},
         ],
     },
-    "hypernatraemia": {"refer_above_mmol_l": 150, "fall_per_day_low": 10, "fall_per_day_high": 12,
-                       "source": "S31", "note": "Conflict C18; information only, a CHW refers."},
+    "hypernatraemia": {"refer_above_mmol_l": 150, "source": "S31",
+                       "note": "Conflict C18; a CHW refers (routine at least); the safe fall per day is RULES['sodium_max_fall_mmol_l_per_day']."},
+    "ml_per_litre": {"value": 1000, "source": "PRACTICE", "note": "unit conversion"},
+    "cup_ml": {"value": 200, "source": "S02",
+               "note": "A large cup: 50-100 ml is 'a quarter to half a large cup'. Default of the cup_ml setting."},
+    "ors_composition": {
+        "source": "S16",
+        "note": "WHO/UNICEF reduced-osmolarity ORS, per litre (table verified in secondary texts).",
+        "g_per_l": {"sodium_chloride": 2.6, "glucose_anhydrous": 13.5, "potassium_chloride": 1.5,
+                    "trisodium_citrate_dihydrate": 2.9},
+        "total_g_per_l": 20.5,
+        "mmol_per_l": {"sodium": 75, "chloride": 65, "glucose": 75, "potassium": 20, "citrate": 10},
+        "osmolarity_mosm_per_l": 245,
+    },
     # --- Output ordering and texts ---------------------------------------------------------------
     "refer_levels": {"source": "PRACTICE", "order": ["none", "routine", "urgent"]},
     "classification_order": {"source": "PRACTICE", "order": [
@@ -287,6 +304,18 @@ _CORE: dict = {
         "young_infant", "severe_acute_malnutrition", "moderate_acute_malnutrition",
         "severe_persistent_diarrhoea", "persistent_diarrhoea", "dysentery", "suspected_cholera"]},
     "vomiting_wait_minutes": {"value": 10, "source": "S04", "note": "Conflict C15: IMCI 10 minutes."},
+    # --- Caregiver sheet (issue 5): the numbers printed on the home sheet --------------------
+    "sheet_ors_water_ml_per_sachet": {"value": 1000, "source": "S16",
+                                      "note": "One sachet of reduced-osmolarity ORS in 1 litre of clean water."},
+    "sheet_ors_keep_hours": {"value": 24, "source": "S16", "status": "unconfirmed",
+                             "label": "use mixed ORS within 24 hours, make it fresh each day (conflict C14)"},
+    "sheet_zinc_tablet_mg": {"value": 20, "source": "S10", "note": "20 mg dispersible tablet; 10 mg = half a tablet."},
+    "sheet_spoon_ml": {"value": 5, "source": "PRACTICE", "note": "one teaspoon"},
+    "sheet_spoons_below_age_months": {"value": 24, "source": "S02",
+                                      "note": "Under 2 years, a teaspoonful every 1-2 minutes."},
+    "sheet_return_if_not_better_days": {"value": 3, "source": "S02"},
+    "sheet_follow_up_days": {"value": 5, "source": "S04", "status": "unconfirmed",
+                             "label": "follow-up visit after 5 days"},
     "facility_texts": {"source": "PRACTICE", "name": " to {name}", "phone": " (phone {phone})"},
     "actions": {
         "source": "PRACTICE",
@@ -318,7 +347,7 @@ _CORE: dict = {
             "plan_c_refer_iv_facility": {"source": "S04", "text": "No IV here: refer URGENTLY to the IV facility{facility}. Give the mother ORS and show her how to give frequent sips on the way."},
             "plan_c_ng": {"source": "S14", "text": "Give ORS by nasogastric tube: {ml_per_hour} ml per hour for {hours} hours ({total_ml} ml in all). If there is repeated vomiting or abdominal distension, give it more slowly."},
             "plan_c_ng_per_kg": {"source": "S14", "text": "Give ORS by nasogastric tube: {ml_per_kg_per_hour} ml/kg per hour for {hours} hours. Weigh the patient to work out the volumes. If there is repeated vomiting or abdominal distension, give it more slowly."},
-            "plan_c_ng_monitor": {"source": "S04", "text": "Reassess every 1-2 hours. If not improving after 3 hours, send the child for IV therapy."},
+            "plan_c_ng_monitor": {"source": "S04", "status": "unconfirmed", "label": "nasogastric rehydration: reassess every 1-2 hours, send for IV if not improving after 3 hours", "text": "Reassess every 1-2 hours. If not improving after 3 hours, send the child for IV therapy."},
             "plan_c_refer": {"source": "S04", "text": "Refer URGENTLY to hospital for IV or nasogastric treatment{facility}. If the child can drink, give frequent sips of ORS on the way."},
             "plan_c_reassess": {"source": "S02", "text": "Reassess after {hours} hours and choose Plan A, B or C."},
             "plan_b_weight_row": {"source": "S04", "text": "Give {total_ml} ml of ORS over {hours} hours ({ml_per_kg} ml/kg). The {table} table gives {low_ml}-{high_ml} ml for this weight."},
@@ -335,7 +364,7 @@ _CORE: dict = {
             "dysentery_refer": {"source": "S08", "status": "unconfirmed", "label": "dysentery in a young infant or a child with SAM: admit", "text": "Dysentery in a young infant or a child with severe acute malnutrition: refer URGENTLY for admission{facility}."},
             "dysentery_policy": {"source": "S07", "text": "Dysentery: {policy_text} Follow up in 2 days."},
             "severe_persistent_refer": {"source": "S04", "text": "Severe persistent diarrhoea: treat the dehydration first, then refer to hospital{facility}."},
-            "persistent_feeding": {"source": "S04", "text": "Persistent diarrhoea: give feeding advice for persistent diarrhoea and follow up in 5 days."},
+            "persistent_feeding": {"source": "S04", "status": "unconfirmed", "label": "persistent diarrhoea: feeding advice and follow-up in 5 days", "text": "Persistent diarrhoea: give feeding advice for persistent diarrhoea and follow up in 5 days."},
             "young_infant_refer_urgent": {"source": "S07", "text": "Young infant (under 2 months) with dehydration, diarrhoea for 14 days or more, or blood in the stool: refer URGENTLY{facility}."},
             "young_infant_refer_routine": {"source": "S07", "text": "Young infant (under 2 months) with diarrhoea: refer for assessment{facility}."},
             "cholera_antibiotic": {"source": "S10", "text": "Suspected cholera, aged 2 years or more, with severe dehydration and cholera in the area: give the oral antibiotic for cholera set by national policy."},
@@ -560,3 +589,26 @@ _GROWTH_SCORES_FLUIDS: dict = {
 }
 
 RULES: dict = {**_CORE, **_GROWTH_SCORES_FLUIDS}
+
+
+def _canonical(obj: object) -> str:
+    return json.dumps(obj, sort_keys=True, separators=(",", ":"))
+
+
+def _body(settings: ClinicSettings) -> dict:
+    from . import growth  # growth reads RULES from this module, so import it late
+
+    return {"sources": SOURCES, "rules": RULES, "settings": asdict(settings),
+            "growth_tables": growth.tables_json()}
+
+
+@lru_cache(maxsize=64)
+def rulebook_version(settings: ClinicSettings) -> str:
+    """sha256 of the canonical JSON of sources, rules, settings and growth tables (cached)."""
+    return hashlib.sha256(_canonical(_body(settings)).encode("utf-8")).hexdigest()
+
+
+def rulebook_json(settings: ClinicSettings) -> dict:
+    """Everything the offline engine needs: {"version", "sources", "rules", "settings",
+    "growth_tables"}. The version changes with any rule, table or clinic setting."""
+    return {"version": rulebook_version(settings), **_body(settings)}
