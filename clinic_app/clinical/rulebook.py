@@ -588,7 +588,73 @@ _GROWTH_SCORES_FLUIDS: dict = {
     },
 }
 
-RULES: dict = {**_CORE, **_GROWTH_SCORES_FLUIDS}
+# Owned by the "follow-up" helper: reassessment and check intervals beyond the core's plan
+# entries, fluid-balance monitoring, follow-up visit days (clinical/followup.py, monitoring.py).
+_FOLLOWUP: dict = {
+    # Plan B reassessment (plan_b_hours), Plan C IV checks (plan_c_reassess_minutes), IV full
+    # reassessment (plan_c_iv schedules) and NG duration (plan_c_ng) are the core's entries.
+    "followup_plan_c_iv_check_after_pulse_minutes": {
+        "value": 60, "source": "S02", "note": "'at least every hour thereafter'"},
+    "followup_ng_check_minutes": {
+        "low": 60, "high": 120, "source": "S04", "status": "unconfirmed",
+        "label": "nasogastric rehydration: reassess every 1-2 hours"},
+    "followup_ng_not_improving_hours": {
+        "value": 3, "source": "S04", "status": "unconfirmed",
+        "label": "nasogastric rehydration: send for IV if not improving after 3 hours"},
+    "followup_sam_check_minutes": {
+        "first": 30, "first_hours": 2, "then": 60, "source": "S08", "status": "unconfirmed",
+        "label": "SAM rehydration: check every 30 minutes for 2 hours, then every hour",
+        "note": "The dosing times (5 ml/kg every 30 min for 2 h, then hourly) are verified (S08); "
+                "using them as the check times is from memory of the Pocket book."},
+    "followup_sam_max_hours": {
+        "value": 12, "source": "S08", "note": "5-10 ml/kg per hour up to a maximum of 12 hours"},
+    "followup_visit_days": {
+        "source": "S07",
+        "note": "Days from the visit to the follow-up visit; the earliest applicable one wins.",
+        "rows": [
+            {"classification": "dysentery", "days": 2, "source": "S07",
+             "note": "'Followup in 2 days' (C17: 2-3 days in some summaries)"},
+            {"classification": "persistent_diarrhoea", "days": 5, "source": "S04"},
+            {"classification": "severe_persistent_diarrhoea", "days": 5, "source": "S04",
+             "note": "only when the child is not referred on"},
+            {"classification": "no_dehydration", "days": 5, "source": "S04",
+             "status": "unconfirmed", "only_if_not_improving": True,
+             "label": "Plan A: follow up in 5 days if not improving"},
+        ],
+    },
+    "followup_return_if_not_better_days": {
+        "value": 3, "source": "S02", "note": "Return immediately if it does not get better in three days."},
+    "followup_overhydration_factor": {
+        "value": 1.5, "source": "PRACTICE",
+        "note": "Common practice, no source: 'far beyond the plan' = more than 1.5 times the "
+                "upper target given. WHO says give more ORS if the child wants more, so this only "
+                "asks for a check for puffy eyelids and a reassessment.",
+    },
+    "followup_severity_rank": {
+        "source": "PRACTICE", "order": ["none", "some", "severe"],
+        "note": "Improving = a lower rank than at the previous assessment.",
+    },
+    "followup_texts": {
+        "source": "PRACTICE",
+        "note": "Puffy eyelids and not improving reuse the core's caution texts.",
+        "texts": {
+            "far_beyond_plan": {"source": "PRACTICE", "text": "Much more fluid has been given than the plan's target ({given_ml} ml against {target_ml} ml). Look for puffy eyelids and reassess the child."},
+            "send_for_iv": {"source": "S04", "status": "unconfirmed", "label": "nasogastric rehydration: send for IV if not improving after 3 hours", "text": "Not improving after {hours} hours of nasogastric rehydration: send the child for IV therapy{facility}."},
+            "B_to_A": {"source": "S02", "text": "No dehydration now: change to Plan A and teach the mother home treatment."},
+            "B_repeat": {"source": "S02", "text": "Still some dehydration: repeat Plan B and start offering food, milk and other fluids."},
+            "B_to_C": {"source": "S02", "text": "Severe dehydration now: start Plan C."},
+            "C_to_B": {"source": "S02", "text": "Improving, with some dehydration: stop IV and give ORS for 4 hours (Plan B)."},
+            "C_to_A": {"source": "S02", "text": "No dehydration now: change to Plan A."},
+            "C_repeat": {"source": "S02", "text": "Still severe dehydration: repeat the Plan C schedule."},
+        },
+    },
+    "followup_chart": {
+        "source": "PRACTICE", "width": 340, "height": 200, "margin": 30,
+        "note": "Drawing sizes of the fluid-balance chart, not clinical numbers.",
+    },
+}
+
+RULES: dict = {**_CORE, **_GROWTH_SCORES_FLUIDS, **_FOLLOWUP}
 
 
 def _canonical(obj: object) -> str:
