@@ -105,6 +105,7 @@ def serve_command(host, port, threads, use_tls):
 def init_app(app) -> None:
     for command in (init_db_command, add_user_command, seed_demo_command, serve_command):
         app.cli.add_command(command)
-    from clinic_app import server_cli
+    from clinic_app import audit_cli, server_cli
 
     server_cli.register(app)  # tls, backup, restore (issue 8)
+    audit_cli.register(app)  # audit verify (issue 9)
