@@ -11,6 +11,7 @@ BLUEPRINTS = [
     "clinic_app.web.auth",
     "clinic_app.web.home",
     "clinic_app.web.api",
+    "clinic_app.web.pwa",
 ]
 
 # The content security policy: no inline script or style anywhere.

@@ -1,0 +1,46 @@
+"""The installable app: manifest, service worker headers and the asset-hash cache name."""
+
+from __future__ import annotations
+
+from clinic_app.web.pwa import shell_assets, shell_version
+
+
+def test_the_manifest_names_the_app_and_its_icons(client):
+    response = client.get("/manifest.webmanifest")
+    assert response.status_code == 200
+    assert response.mimetype == "application/manifest+json"
+    manifest = response.get_json(force=True)
+    assert manifest["display"] == "standalone" and manifest["scope"] == "/"
+    assert manifest["start_url"].startswith("/")
+    sizes = {(icon["sizes"], icon["purpose"]) for icon in manifest["icons"]}
+    assert {("192x192", "any"), ("512x512", "any"), ("512x512", "maskable")} <= sizes
+    for icon in manifest["icons"]:
+        assert client.get(icon["src"]).status_code == 200
+
+
+def test_the_service_worker_is_public_and_never_cached_by_http(client):
+    response = client.get("/sw.js")
+    assert response.status_code == 200
+    assert response.mimetype == "text/javascript"
+    assert response.headers["Cache-Control"] == "no-cache"
+    script = response.get_data(as_text=True)
+    assert "/static/js/outbox.js" in script and "/static/css/app.css" in script
+
+
+def test_the_cache_name_follows_the_asset_hashes(tmp_path):
+    (tmp_path / "js").mkdir()
+    (tmp_path / "css").mkdir()
+    (tmp_path / "js" / "a.js").write_text("one")
+    (tmp_path / "css" / "app.css").write_text("body{}")
+    first = shell_version(shell_assets(str(tmp_path)))
+    assert shell_version(shell_assets(str(tmp_path))) == first
+    (tmp_path / "js" / "a.js").write_text("two")
+    assert shell_version(shell_assets(str(tmp_path))) != first
+    assert set(shell_assets(str(tmp_path))) == {"js/a.js", "css/app.css"}
+
+
+def test_pages_link_the_manifest_and_load_no_inline_script(client, as_user):
+    as_user("chw")
+    html = client.get("/").get_data(as_text=True)
+    assert 'rel="manifest"' in html
+    assert "<script>" not in html and "onclick" not in html
