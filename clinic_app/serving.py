@@ -108,7 +108,7 @@ def origin(host: str, port: int, scheme: str = "https") -> str:
 
 # The plain-HTTP server answers only these paths: the enrolment page, its certificate download
 # and the static files it uses. Everything else would be the app without TLS.
-ENROL_PREFIXES = ("/enrol", "/static/")
+ENROL_PREFIXES = ("/enrol/", "/static/")
 
 
 def enrol_only(app):
@@ -116,7 +116,7 @@ def enrol_only(app):
 
     def wsgi(environ, start_response):
         path = environ.get("PATH_INFO", "")
-        if path.startswith(ENROL_PREFIXES):
+        if path == "/enrol" or path.startswith(ENROL_PREFIXES):
             return app(environ, start_response)
         start_response(
             "302 Found",

@@ -12,6 +12,7 @@ BLUEPRINTS = [
     "clinic_app.web.home",
     "clinic_app.web.api",
     "clinic_app.web.pwa",
+    "clinic_app.web.enrol",
 ]
 
 # The content security policy: no inline script or style anywhere.
