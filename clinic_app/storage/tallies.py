@@ -1,0 +1,119 @@
+"""Weekly tallies for the supervisor, read from the trigger-maintained ``tally_daily`` table.
+
+The week of a case is the ISO week of the local date written in its ``created_at``
+(clinic_app.surveillance.isoweek). Weeks are found with whole-day arithmetic from the first
+requested Monday, so 2026-W53 (28 Dec 2026 - 3 Jan 2027) needs no special case.
+Quarantined cases never count: the triggers only add rows whose status is 'active'.
+"""
+
+from __future__ import annotations
+
+import sqlite3
+from dataclasses import dataclass
+
+from clinic_app.surveillance.agegroups import AGE_GROUP_KEYS
+from clinic_app.surveillance.isoweek import IsoWeek, week_range
+
+# The counters of tally_daily, in the order the pages show them.
+COUNTERS = (
+    "cases",
+    "sev_none", "sev_some", "sev_severe",
+    "plan_a", "plan_b", "plan_c", "plan_sam",
+    "danger_signs",
+    "referrals_urgent", "referrals_routine", "referrals_completed",
+    "dysentery", "persistent_diarrhoea", "severe_acute_malnutrition", "suspected_cholera",
+    "outcome_recovered", "outcome_referred", "outcome_admitted", "outcome_died", "outcome_lost",
+    "ors_sachets", "zinc_tablets",
+    # Quality-indicator numerators and denominators (see surveillance/quality.py).
+    "dehydrated_given_ors", "zinc_advised", "zinc_advised_given", "severe_referred_or_plan_c",
+)  # fmt: skip
+
+SEXES = ("f", "m")
+
+_WEEK = "CAST((julianday(day) - julianday(:monday)) / 7 AS INTEGER)"
+_SUMS = ", ".join(f"SUM({name}) AS {name}" for name in COUNTERS)
+
+
+@dataclass(frozen=True)
+class TallyFilter:
+    """Optional filters; None means "all"."""
+
+    area: str | None = None
+    user_id: int | None = None
+    age_group: str | None = None
+    sex: str | None = None
+
+    def where(self) -> tuple[str, dict]:
+        """The extra WHERE clauses and their parameters."""
+        clauses, params = [], {}
+        for column in ("area", "user_id", "age_group", "sex"):
+            value = getattr(self, column)
+            if value is not None and value != "":
+                clauses.append(f" AND {column} = :{column}")
+                params[column] = value
+        if self.age_group is not None and self.age_group not in AGE_GROUP_KEYS:
+            raise ValueError(f"unknown age group {self.age_group!r}")
+        return "".join(clauses), params
+
+
+def _bounds(first: IsoWeek, last: IsoWeek) -> dict:
+    return {
+        "monday": first.monday.isoformat(),
+        "lo": first.monday.isoformat(),
+        "hi": last.shift(1).monday.isoformat(),
+    }
+
+
+def weekly_tallies(
+    conn: sqlite3.Connection, first: IsoWeek, last: IsoWeek, where: TallyFilter | None = None
+) -> list[dict]:
+    """One dict per week from ``first`` to ``last`` (zeros for empty weeks): week + COUNTERS."""
+    extra, params = (where or TallyFilter()).where()
+    sql = (
+        f"SELECT {_WEEK} AS w, {_SUMS} FROM tally_daily"
+        f" WHERE day >= :lo AND day < :hi{extra} GROUP BY w"
+    )
+    found = {row["w"]: row for row in conn.execute(sql, {**_bounds(first, last), **params})}
+    out = []
+    for index, week in enumerate(week_range(first, last)):
+        row = found.get(index)
+        out.append({"week": str(week), **{n: (row[n] if row else 0) for n in COUNTERS}})
+    return out
+
+
+def weekly_counts_by_area(
+    conn: sqlite3.Connection, first: IsoWeek, last: IsoWeek
+) -> dict[str, list[int]]:
+    """Case counts per area per week (every week present, zeros included), for EARS."""
+    sql = (
+        f"SELECT area, {_WEEK} AS w, SUM(cases) AS n FROM tally_daily"
+        " WHERE day >= :lo AND day < :hi GROUP BY area, w"
+    )
+    size = len(week_range(first, last))
+    out: dict[str, list[int]] = {}
+    for row in conn.execute(sql, _bounds(first, last)):
+        out.setdefault(row["area"], [0] * size)[row["w"]] = row["n"]
+    return out
+
+
+def consumption_totals(conn: sqlite3.Connection) -> dict[str, int]:
+    """ORS sachets and zinc tablets given in all active cases so far."""
+    row = conn.execute(
+        "SELECT coalesce(SUM(ors_sachets), 0) AS ors_sachets,"
+        " coalesce(SUM(zinc_tablets), 0) AS zinc_tablets FROM tally_daily"
+    ).fetchone()
+    return {"ors_sachets": row["ors_sachets"], "zinc_tablets": row["zinc_tablets"]}
+
+
+def areas(conn: sqlite3.Connection) -> list[str]:
+    """Every area that has cases, for the filter list."""
+    return [r[0] for r in conn.execute("SELECT DISTINCT area FROM tally_daily ORDER BY area")]
+
+
+def workers(conn: sqlite3.Connection) -> list[sqlite3.Row]:
+    """Users who recorded cases, for the health-worker filter (id, name)."""
+    return conn.execute(
+        "SELECT users.id, coalesce(nullif(users.display_name, ''), users.username) AS name"
+        " FROM users WHERE users.id IN (SELECT DISTINCT user_id FROM tally_daily)"
+        " ORDER BY name"
+    ).fetchall()
