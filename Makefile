@@ -63,4 +63,4 @@ test-js: ## Run the JavaScript engine tests with node --test
 	else echo "no JavaScript tests yet"; fi
 
 lint: $(STAMP) ## Ruff over the whole tree
-	$(VENV)/bin/ruff check clinic_app tests bench
+	$(VENV)/bin/ruff check clinic_app tests $(wildcard bench)

@@ -6,6 +6,7 @@ import sqlite3
 
 import click
 from flask import current_app
+from flask.cli import with_appcontext
 
 from clinic_app import clock
 from clinic_app.passwords import hash_password
@@ -19,6 +20,7 @@ def open_db() -> sqlite3.Connection:
 
 
 @click.command("init-db")
+@with_appcontext
 def init_db_command():
     """Create the database or bring its schema up to date (safe to repeat)."""
     conn = db.connect(current_app.config["DATABASE"])
@@ -48,6 +50,7 @@ def add_user(conn, username: str, role: str, password: str, display_name: str = 
 
 
 @click.command("add-user")
+@with_appcontext
 @click.argument("username")
 @click.option("--role", required=True, type=click.Choice(users.ROLES))
 @click.option("--password", prompt=True, hide_input=True, confirmation_prompt=True,
@@ -62,6 +65,7 @@ def add_user_command(username, role, password, display_name, area):
 
 
 @click.command("seed-demo")
+@with_appcontext
 def seed_demo_command():
     """Fill the database with the invented demo clinic (only when it has no users yet)."""
     from clinic_app import demo
@@ -76,7 +80,25 @@ def seed_demo_command():
         click.echo(f"  {username:<12} {role:<11} {password}")
 
 
+@click.command("export-rules")
+@with_appcontext
+@click.argument("path", type=click.Path(dir_okay=False, writable=True), default="rulebook.json")
+def export_rules_command(path):
+    """Write the rulebook JSON (with the clinic settings and its version) for the offline engine."""
+    import json
+
+    from clinic_app.clinical.rulebook import rulebook_json
+    from clinic_app.storage import settings as settings_store
+
+    conn = open_db()
+    data = rulebook_json(settings_store.load(conn))
+    with open(path, "w", encoding="utf-8") as fh:
+        json.dump(data, fh, ensure_ascii=False, sort_keys=True)
+    click.echo(f"Rulebook version {data['version']} written to {path}")
+
+
 @click.command("serve")
+@with_appcontext
 @click.option("--host", default=None, help="Address to listen on (config HOST).")
 @click.option("--port", default=None, type=int, help="Port (config PORT).")
 @click.option("--threads", default=8, show_default=True, help="Worker threads.")
@@ -103,7 +125,8 @@ def serve_command(host, port, threads, use_tls):
 
 
 def init_app(app) -> None:
-    for command in (init_db_command, add_user_command, seed_demo_command, serve_command):
+    for command in (init_db_command, add_user_command, seed_demo_command, export_rules_command,
+                    serve_command):
         app.cli.add_command(command)
     from clinic_app import audit_cli, server_cli
 
