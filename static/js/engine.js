@@ -102,13 +102,17 @@ class Assessment {
       inp.weight_kg, inp.height_cm, inp.height_measured_lying);
   }
 
+  // The entered weight, for every weight-based step (never an estimate in SAM).
   computeWeight() {
+    const { inp } = this;
+    if (inp.weight_kg === null || (this.sam && inp.weight_estimated)) return null;
+    const basis = inp.weight_estimated ? 'entered_estimate' : 'measured';
+    return { kg: inp.weight_kg, estimated: inp.weight_estimated, basis };
+  }
+
+  // Plan C volumes without a weight: the age formula, always labelled estimated.
+  weightFromAge() {
     const { inp, rules } = this;
-    if (inp.weight_kg !== null && !(this.sam && inp.weight_estimated)) {
-      const basis = inp.weight_estimated ? 'entered_estimate' : 'measured';
-      return { kg: inp.weight_kg, estimated: inp.weight_estimated, basis };
-    }
-    if (this.sam) return null;
     const method = rules.weight_estimate_method.value;
     const kg = fluids.weightFromAge(rules, inp.age_months, method);
     if (kg === null) return null;
@@ -170,6 +174,7 @@ class Assessment {
 
   planC(out) {
     const route = plans.planCRoute(this.rules, this.settings);
+    if (this.weight === null && (route === 'iv' || route === 'ng')) this.weight = this.weightFromAge();
     const kg = this.kg();
     if (route === 'iv') {
       const iv = plans.planCIv(this.rules, this.inp.age_months, kg);
@@ -274,7 +279,7 @@ class Assessment {
     const rule = this.rules.young_infant_referral;
     this.used('young_infant_signs', this.rules.young_infant_signs);
     this.used('young_infant_referral', rule);
-    if (dehydrated || this.persistent || this.inp.blood_in_stool) {
+    if (dehydrated || this.persistent || this.inp.blood_in_stool || this.dangers.length) {
       this.refer('urgent');
       this.act('young_infant_refer_urgent');
     } else {

@@ -1,5 +1,5 @@
 // Published dehydration scores: the JavaScript twin of clinic_app/clinical/scores.py.
-import { isObject, own, render, replaceAll } from './text.js';
+import { isObject, own, render, replaceAll, setOwn } from './text.js';
 
 // result key -> [rulebook key, input object, which items (rule key or null), bands key]
 const SCALES = [
@@ -23,21 +23,21 @@ export function scoreItemErrors(rules, input) {
   for (const [scale, items] of Object.entries(given)) {
     const key = `score_items.${scale}`;
     if (!own(INPUT_SCALES, scale)) {
-      errors[key] = text(rules, 'unknown_scale', { choices: Object.keys(INPUT_SCALES).join(', ') });
+      setOwn(errors, key, text(rules, 'unknown_scale', { choices: Object.keys(INPUT_SCALES).join(', ') }));
       continue;
     }
     if (!isObject(items)) {
-      errors[key] = text(rules, 'not_object', {});
+      setOwn(errors, key, text(rules, 'not_object', {}));
       continue;
     }
     const rule = rules[INPUT_SCALES[scale]];
     const points = rule.items.points;
     for (const [item, finding] of Object.entries(items)) {
       if (!own(points, item)) {
-        errors[`${key}.${item}`] = text(rules, 'unknown_item', { name: rule.name });
+        setOwn(errors, `${key}.${item}`, text(rules, 'unknown_item', { name: rule.name }));
       } else if (finding !== null && !(typeof finding === 'string' && own(points[item], finding))) {
-        errors[`${key}.${item}`] = text(rules, 'invalid_item',
-          { choices: Object.keys(points[item]).join(', ') });
+        setOwn(errors, `${key}.${item}`, text(rules, 'invalid_item',
+          { choices: Object.keys(points[item]).join(', ') }));
       }
     }
   }

@@ -10,6 +10,11 @@ export function own(obj, key) {
   return obj !== null && typeof obj === 'object' && Object.prototype.hasOwnProperty.call(obj, key);
 }
 
+// obj[key] = value that also works for a key such as "__proto__" (which JSON.parse allows).
+export function setOwn(obj, key, value) {
+  Object.defineProperty(obj, key, { value, enumerable: true, writable: true, configurable: true });
+}
+
 export function isObject(value) {
   return value !== null && typeof value === 'object' && !Array.isArray(value);
 }

@@ -2,7 +2,7 @@
 // rules.input_fields with one message per bad field (keyed by path, e.g. "signs.eyes").
 import { plausibleWeightRangeKg, SEXES, weightPlausible } from './growth.js';
 import { scoreItemErrors } from './scores.js';
-import { fmt, isObject, own, render, sortedKeys } from './text.js';
+import { fmt, isObject, own, render, setOwn, sortedKeys } from './text.js';
 
 export class InputError extends Error {
   constructor(code, fields) {
@@ -66,7 +66,7 @@ function unknownKeys(rules, data, specs, allowed, prefix, errors) {
   const known = new Set(specs.map((spec) => spec.name));
   for (const key of sortedKeys(data)) {
     if (!known.has(key) && !allowed.includes(key)) {
-      errors[prefix + key] = rules.input_messages.texts.unknown;
+      setOwn(errors, prefix + key, rules.input_messages.texts.unknown);
     }
   }
 }
@@ -78,7 +78,7 @@ function checkFields(rules, specs, data, prefix, age, errors, out) {
     if (value === null) {
       const neededFrom = opt(spec, 'required_from_age_months');
       if (spec.required || (neededFrom !== null && age !== null && age >= neededFrom)) {
-        errors[path] = message(rules, 'required', spec);
+        setOwn(errors, path, message(rules, 'required', spec));
       }
       continue;
     }
@@ -87,7 +87,7 @@ function checkFields(rules, specs, data, prefix, age, errors, out) {
       problem = rangeError(rules, spec, value);
     }
     if (problem !== null) {
-      errors[path] = problem;
+      setOwn(errors, path, problem);
     } else if (spec.type === 'object') {
       out[spec.name] = {};
       unknownKeys(rules, value, spec.fields, [], `${path}.`, errors);
@@ -116,7 +116,7 @@ export function validate(rules, input) {
   const age = validAge(rules, input);
   unknownKeys(rules, input, specs, ['score_items'], '', errors);
   checkFields(rules, specs, input, '', age, errors, out);
-  Object.assign(errors, scoreItemErrors(rules, input));
+  for (const [key, text] of Object.entries(scoreItemErrors(rules, input))) setOwn(errors, key, text);
   if (Object.keys(errors).length) throw new InputError('invalid_input', errors);
   const signs = { ...out.signs };
   if (age < rules.young_infant_signs.max_age_months_exclusive) delete signs.drinking;
