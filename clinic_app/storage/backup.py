@@ -201,3 +201,9 @@ def maybe_daily_backup(
     for _taken, old in daily_backups(backup_dir)[:-keep]:
         old.unlink(missing_ok=True)
     return dest
+
+
+def last_recorded_backup(conn: sqlite3.Connection) -> str | None:
+    """When the newest backup recorded in the audit log (``backup`` command) was taken."""
+    row = conn.execute("SELECT max(at) FROM audit_log WHERE action = 'backup'").fetchone()
+    return row[0] if row else None

@@ -13,6 +13,7 @@ BLUEPRINTS = [
     "clinic_app.web.api",
     "clinic_app.web.pwa",
     "clinic_app.web.enrol",
+    "clinic_app.web.admin",
 ]
 
 # The content security policy: no inline script or style anywhere.
