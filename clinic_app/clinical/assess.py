@@ -24,9 +24,20 @@ def assess(inputs: dict, settings: ClinicSettings) -> dict:
     inp = validate(inputs)
     check_weight_plausible(inp)
     effective = replace(settings, **dict(inp.context))
-    result = _Assessment(inp, effective).run()
+    result = _plain_numbers(_Assessment(inp, effective).run())
     result["rulebook_version"] = rulebook_version(settings)
     return result
+
+
+def _plain_numbers(node):
+    """Integral floats become ints (25.0 -> 25), so the JSON reads as JavaScript writes it."""
+    if isinstance(node, dict):
+        return {key: _plain_numbers(value) for key, value in node.items()}
+    if isinstance(node, list):
+        return [_plain_numbers(value) for value in node]
+    if isinstance(node, float) and node.is_integer():
+        return int(node)
+    return node
 
 
 class _Assessment:
@@ -109,13 +120,19 @@ class _Assessment:
                              inp.height_cm, inp.height_measured_lying)
 
     def _weight(self) -> dict | None:
-        """The weight for weight-based steps other than Plan B (which uses the age column)."""
+        """The entered weight, for every weight-based step (never an estimate in SAM)."""
         inp = self.inp
-        if inp.weight_kg is not None and not (self.sam and inp.weight_estimated):
-            basis = "entered_estimate" if inp.weight_estimated else "measured"
-            return {"kg": inp.weight_kg, "estimated": inp.weight_estimated, "basis": basis}
-        if self.sam:
+        if inp.weight_kg is None or (self.sam and inp.weight_estimated):
             return None
+        basis = "entered_estimate" if inp.weight_estimated else "measured"
+        return {"kg": inp.weight_kg, "estimated": inp.weight_estimated, "basis": basis}
+
+    def _weight_from_age(self) -> dict | None:
+        """Plan C volumes without a weight: the age formula, always labelled estimated.
+
+        Not for Plan B (its table has an age column) and never in SAM (Plan C only).
+        """
+        inp = self.inp
         method = RULES["weight_estimate_method"]["value"]
         kg = fluids.weight_from_age(inp.age_months, method)
         if kg is None:
@@ -175,6 +192,8 @@ class _Assessment:
 
     def _plan_c(self, out: dict) -> None:
         route = plans.plan_c_route(self.settings)
+        if self.weight is None and route in ("iv", "ng"):
+            self.weight = self._weight_from_age()
         kg = self._kg()
         if route == "iv":
             iv = plans.plan_c_iv(self.inp.age_months, kg)
@@ -277,7 +296,7 @@ class _Assessment:
         rule = RULES["young_infant_referral"]
         self.used("young_infant_signs", RULES["young_infant_signs"])
         self.used("young_infant_referral", rule)
-        if dehydrated or self.persistent or self.inp.blood_in_stool:
+        if dehydrated or self.persistent or self.inp.blood_in_stool or self.dangers:
             self.refer("urgent")
             self.act("young_infant_refer_urgent")
         else:
