@@ -110,3 +110,4 @@ def me():
 # Route modules that extend this blueprint (imported last: they need `bp` defined above).
 from clinic_app.web import api_sync  # noqa: E402,F401
 from clinic_app.web import api_clinical  # noqa: E402,F401
+from clinic_app.web import api_followup  # noqa: E402,F401
