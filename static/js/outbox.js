@@ -17,6 +17,9 @@ export const BACKOFF_MAX_MS = 600_000;
 // kind -> {url, field}: POST {[field]: [payload, ...]} to url, answered {results: [{id, status}]}.
 export const KINDS = {
   case: { url: "/api/v1/cases", field: "cases" },
+  reassessment: { url: "/api/v1/reassessments", field: "reassessments" },
+  monitoring: { url: "/api/v1/monitoring", field: "entries" },
+  outcome: { url: "/api/v1/outcomes", field: "outcomes" },
 };
 
 export function registerKind(kind, spec) {
