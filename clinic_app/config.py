@@ -20,6 +20,8 @@ DEFAULTS: dict[str, object] = {
     "PORT": 8000,
     "TLS": False,
     "TLS_PORT": 8443,
+    "CERT_DIR": "",  # empty = the instance folder (holds tls/ and ca-private/)
+    "BACKUP_DIR": "",  # empty = <instance>/backups
     "SESSION_LIFETIME_HOURS": 12,
     "LOGIN_MAX_FAILURES_PER_ACCOUNT": 10,
     "LOGIN_MAX_FAILURES_PER_ADDRESS": 30,

@@ -21,12 +21,13 @@ CERT_WARNING_DAYS = 60
 
 
 def instance_dir() -> Path:
-    return Path(current_app.instance_path)
+    """Where the certificates live (config CERT_DIR, else the instance folder)."""
+    return serving.cert_dir(current_app)
 
 
 def backup_dir() -> Path:
     """Where the automatic daily backups and the pre-restore safety copies go."""
-    return instance_dir() / "backups"
+    return serving.backup_dir(current_app)
 
 
 def _audit(action: str, record_type: str, record_id: str) -> None:
@@ -181,7 +182,7 @@ def serve_tls(host: str | None, port: int | None, threads: int) -> None:
     cfg = app.config
     try:
         host = serving.require_local_address(host or cfg["HOST"])
-        paths = serving.require_certificate_for(host, app.instance_path, clock.now())
+        paths = serving.require_certificate_for(host, instance_dir(), clock.now())
     except serving.ServeError as exc:
         raise click.ClickException(str(exc)) from None
     https_port = port or int(cfg["TLS_PORT"])

@@ -17,11 +17,22 @@ import datetime as dt
 import errno
 import ipaddress
 import socket
+from pathlib import Path
 
 from clinic_app import tls
 
 # 10049: WSAEADDRNOTAVAIL on Windows; EAFNOSUPPORT: a machine without IPv6 has no IPv6 address.
 _NOT_LOCAL = {errno.EADDRNOTAVAIL, errno.EAFNOSUPPORT, 10049}
+
+
+def cert_dir(app) -> Path:
+    """The folder holding ``tls/`` and ``ca-private/``: config CERT_DIR, else the instance."""
+    return Path(app.config.get("CERT_DIR") or app.instance_path)
+
+
+def backup_dir(app) -> Path:
+    """The folder of the daily backups: config BACKUP_DIR, else ``<instance>/backups``."""
+    return Path(app.config.get("BACKUP_DIR") or Path(app.instance_path) / "backups")
 
 
 class ServeError(Exception):

@@ -18,7 +18,7 @@ class ClinicProfile:
     clinic_name: str = ""
     # Low-stock alert when ORS or zinc stock would last fewer weeks than this at recent use
     # (an operational choice of the clinic, not a clinical number).
-    stock_alert_weeks: int = 2
+    stock_alert_weeks: int = 4
     # Languages offered first for caregiver sheets and new users, as locale codes.
     default_languages: tuple[str, ...] = ("en",)
 

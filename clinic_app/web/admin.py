@@ -7,7 +7,6 @@ from __future__ import annotations
 
 import dataclasses
 import secrets
-from pathlib import Path
 
 from flask import (
     Blueprint,
@@ -20,7 +19,7 @@ from flask import (
     url_for,
 )
 
-from clinic_app import clock, tls
+from clinic_app import clock, serving, tls
 from clinic_app.clinical.rulebook import rulebook_version
 from clinic_app.clinical.types import ClinicSettings
 from clinic_app.i18n import _, available_locales
@@ -59,7 +58,7 @@ def _audit(conn, action: str, record_type: str, record_id) -> None:
 
 def certificate_status(now) -> dict:
     """What the admin page says about the server certificate and the CA."""
-    paths = tls.TLSPaths.for_instance(current_app.instance_path)
+    paths = tls.TLSPaths.for_instance(serving.cert_dir(current_app))
     if not paths.server_cert.exists() or not paths.ca_cert.exists():
         return {"present": False}
     days = tls.days_until_expiry(paths.server_cert, now)
@@ -70,7 +69,7 @@ def certificate_status(now) -> dict:
 
 def backup_status(conn) -> dict:
     """The newest automatic backup (from the backup folder) and the newest manual one."""
-    automatic = backups.last_backup_time(Path(current_app.instance_path) / "backups")
+    automatic = backups.last_backup_time(serving.backup_dir(current_app))
     manual = backups.last_recorded_backup(conn)
     return {"automatic": clock.iso(automatic) if automatic else None, "manual": manual}
 

@@ -27,7 +27,7 @@ def app_origin() -> str:
 
 
 def _ca_path():
-    return tls.TLSPaths.for_instance(current_app.instance_path).ca_cert
+    return tls.TLSPaths.for_instance(serving.cert_dir(current_app)).ca_cert
 
 
 def _download_name() -> str:

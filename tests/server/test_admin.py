@@ -37,7 +37,7 @@ def _actions(app):
 def _form(**changes):
     """A complete settings form: the defaults, with ``changes``."""
     data = {k: v for k, v in dataclasses.asdict(ClinicSettings()).items()}
-    data.update(clinic_name="Lukanda Hills Health Post", stock_alert_weeks=2,
+    data.update(clinic_name="Lukanda Hills Health Post", stock_alert_weeks=4,
                 default_languages="en")
     data.update(changes)
     form = {}

@@ -1,55 +1,34 @@
+import { app } from "../app.js";
+import { openOutbox } from "../outbox.js";
+
 // "Device ready?" page: four checks a phone must pass before it goes out of range.
 // No DOM work outside this page; strings come from data-* attributes (translated server-side).
 
 const summary = document.getElementById("ready-summary");
 const text = summary.dataset;
 
-// The device token is written by the offline app (issue 4) into IndexedDB. Contract read here:
-// some database of this origin has an object store "meta" holding, under the key "device",
-// an object with a non-empty "token" (as answered by POST /api/v1/devices).
-const DEVICE_STORE = "meta";
-const DEVICE_KEY = "device";
-
-function openDb(name) {
-  return new Promise((resolve, reject) => {
-    const request = indexedDB.open(name);
-    request.onsuccess = () => resolve(request.result);
-    request.onerror = () => reject(request.error);
-    request.onupgradeneeded = () => request.transaction.abort(); // never create a database here
-  });
-}
-
-function readKey(db, store, key) {
-  return new Promise((resolve, reject) => {
-    const request = db.transaction(store, "readonly").objectStore(store).get(key);
-    request.onsuccess = () => resolve(request.result);
-    request.onerror = () => reject(request.error);
-  });
-}
+// The device token is kept by the outbox (static/js/outbox.js) per user name; app.js registers
+// the phone after login. Waiting for `app` lets a first visit finish that registration.
+const WORKER_WAIT_MS = 15000;
 
 async function deviceTokenPresent() {
-  if (!("indexedDB" in window) || !indexedDB.databases) return false;
-  for (const info of await indexedDB.databases()) {
-    let db;
-    try {
-      db = await openDb(info.name);
-      if (db.objectStoreNames.contains(DEVICE_STORE)) {
-        const record = await readKey(db, DEVICE_STORE, DEVICE_KEY);
-        const token = record && (record.token || (record.value && record.value.token));
-        if (typeof token === "string" && token.length > 0) return true;
-      }
-    } catch (error) {
-      // A database we cannot read is not the app's: keep looking.
-    } finally {
-      if (db) db.close();
-    }
+  const user = document.body.dataset.user;
+  if (!user || !("indexedDB" in window)) return false;
+  await app;
+  const outbox = await openOutbox();
+  try {
+    const device = await outbox.device(user);
+    return Boolean(device && typeof device.token === "string" && device.token);
+  } finally {
+    outbox.db.close();
   }
-  return false;
 }
 
 async function serviceWorkerActive() {
   if (!("serviceWorker" in navigator)) return false;
-  const registration = await navigator.serviceWorker.getRegistration("/");
+  // app.js registers the worker on every page; on a first visit it may still be installing.
+  const timeout = new Promise((resolve) => setTimeout(() => resolve(null), WORKER_WAIT_MS));
+  const registration = await Promise.race([navigator.serviceWorker.ready, timeout]);
   return Boolean(registration && registration.active);
 }
 
