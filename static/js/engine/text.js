@@ -64,7 +64,13 @@ export function facility(rules, name, phone) {
 }
 
 // Python's sorted() order for strings: by code point (JS sort() compares UTF-16 units).
+const SURROGATE_OR_ABOVE = /[\uD800-\uFFFF]/;
+
 export function codePointCompare(a, b) {
+  if (!SURROGATE_OR_ABOVE.test(a) && !SURROGATE_OR_ABOVE.test(b)) {
+    if (a === b) return 0;
+    return a < b ? -1 : 1;
+  }
   const x = Array.from(a);
   const y = Array.from(b);
   const n = Math.min(x.length, y.length);
@@ -75,6 +81,8 @@ export function codePointCompare(a, b) {
   return x.length - y.length;
 }
 
-export function sortedKeys(obj) {
-  return Object.keys(obj).sort(codePointCompare);
+// Python's sorted() of a list of strings, or of an object's keys.
+export function sortedKeys(keysOrObject) {
+  const keys = Array.isArray(keysOrObject) ? [...keysOrObject] : Object.keys(keysOrObject);
+  return keys.sort(codePointCompare);
 }

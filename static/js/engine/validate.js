@@ -4,9 +4,10 @@ import { plausibleWeightRangeKg, SEXES, weightPlausible } from './growth.js';
 import { scoreItemErrors } from './scores.js';
 import { fmt, isObject, own, render, setOwn, sortedKeys } from './text.js';
 
-export class InputError extends Error {
+// Thrown inside the engine and turned into the 422 body by assess(); not an Error, as a stack
+// trace is costly and never shown.
+export class InputError {
   constructor(code, fields) {
-    super(`${code}: ${JSON.stringify(fields)}`);
     this.code = code;
     this.fields = fields;
   }
@@ -64,10 +65,9 @@ function rangeError(rules, spec, value) {
 
 function unknownKeys(rules, data, specs, allowed, prefix, errors) {
   const known = new Set(specs.map((spec) => spec.name));
-  for (const key of sortedKeys(data)) {
-    if (!known.has(key) && !allowed.includes(key)) {
-      setOwn(errors, prefix + key, rules.input_messages.texts.unknown);
-    }
+  const unknown = Object.keys(data).filter((key) => !known.has(key) && !allowed.includes(key));
+  for (const key of sortedKeys(unknown)) {
+    setOwn(errors, prefix + key, rules.input_messages.texts.unknown);
   }
 }
 
