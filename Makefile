@@ -39,14 +39,19 @@ $(STAMP): pyproject.toml
 
 translations-compile: $(STAMP) ## Compile the .po catalogs to .mo and export JSON catalogs
 	@if ls translations/*/LC_MESSAGES/messages.po >/dev/null 2>&1; then \
-	  $(VENV)/bin/pybabel compile -q -d translations -f; fi
+	  $(VENV)/bin/pybabel -q compile -d translations; fi
+	@$(PY) -m clinic_app.i18n_export
 
 translations-extract: $(STAMP) ## Extract translatable strings into translations/messages.pot
-	$(VENV)/bin/pybabel extract -q -F babel.cfg --add-comments=I18N: -k lazy_gettext \
-	  -o translations/messages.pot .
+	$(VENV)/bin/pybabel -q extract -F babel.cfg --add-comments=I18N: -k lazy_gettext \
+	  --sort-by-file --no-wrap -o translations/messages.pot .
 
-translations-update: translations-extract ## Merge new strings into every catalog
-	$(VENV)/bin/pybabel update -q -i translations/messages.pot -d translations --no-fuzzy-matching
+translations-update: translations-extract ## Merge new strings into every catalog (keeps X-Review-Status)
+	$(PY) -m clinic_app.i18n_export update
+
+screenshots: setup ## PNGs of the A4 caregiver sheet in English, Swahili, Hindi and Arabic
+	@mkdir -p screenshots
+	$(PY) -m clinic_app.sheet_screenshots screenshots
 
 run: setup ## Serve the app on http://127.0.0.1:8000 with the demo clinic
 	@$(FLASK) init-db

@@ -12,6 +12,7 @@ BLUEPRINTS = [
     "clinic_app.web.home",
     "clinic_app.web.api",
     "clinic_app.web.cases",
+    "clinic_app.web.sheets",
     "clinic_app.web.pwa",
     "clinic_app.web.enrol",
     "clinic_app.web.admin",

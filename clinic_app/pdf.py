@@ -1,0 +1,109 @@
+"""PDF rendering through WeasyPrint: local static files only, no cookies, a small cache.
+
+WeasyPrint is imported inside the functions, so the app starts (and most tests run) without
+paying for its import. The page HTML is rendered by Flask's Jinja from the same template as
+the screen version; WeasyPrint then fetches the stylesheets, fonts and pictograms it links to
+through ``LocalStaticFetcher``, which reads them straight from the static folder and refuses
+every other address: nothing leaves the machine and no request carries the user's cookies.
+"""
+
+from __future__ import annotations
+
+import threading
+from collections import OrderedDict
+from collections.abc import Callable
+from pathlib import Path
+from urllib.parse import unquote, urlsplit
+
+from flask import current_app, render_template
+
+# The documents are rendered with this made-up origin as base URL, so "/static/x.css" in the
+# template becomes an address the fetcher recognises. ".invalid" can never resolve (RFC 2606).
+BASE_URL = "http://sheet.invalid/"
+_STATIC_PREFIX = "/static/"
+_TYPES = {".css": "text/css", ".svg": "image/svg+xml", ".ttf": "font/ttf", ".png": "image/png",
+          ".woff2": "font/woff2", ".woff": "font/woff"}
+
+
+class RefusedURL(ValueError):
+    """An address the PDF renderer is not allowed to fetch."""
+
+
+def static_path(url: str, static_root: str | Path) -> Path:
+    """Map a document address to a file in the static folder, or raise RefusedURL."""
+    parts = urlsplit(url)
+    if f"{parts.scheme}://{parts.netloc}/" != BASE_URL or not parts.path.startswith(
+            _STATIC_PREFIX):
+        raise RefusedURL(f"only local static files may be fetched, not {url!r}")
+    root = Path(static_root).resolve()
+    target = (root / unquote(parts.path[len(_STATIC_PREFIX):])).resolve()
+    if not target.is_relative_to(root) or not target.is_file():
+        raise RefusedURL(f"no such static file: {url!r}")
+    return target
+
+
+def _fetcher_class():
+    from weasyprint.urls import URLFetcher, URLFetcherResponse
+
+    class LocalStaticFetcher(URLFetcher):
+        """Serves /static/ files from disk; refuses file:, data:, http(s) and everything else."""
+
+        def __init__(self, static_root: str):
+            super().__init__(allowed_protocols=("http",), allow_redirects=False)
+            self.static_root = static_root
+
+        def fetch(self, url, headers=None):
+            path = static_path(url, self.static_root)
+            return URLFetcherResponse(url, path.read_bytes(),
+                                      {"Content-Type": _TYPES.get(path.suffix,
+                                                                  "application/octet-stream")})
+
+    return LocalStaticFetcher
+
+
+def html_to_pdf(html: str, static_root: str | Path) -> bytes:
+    """Turn an HTML string into PDF bytes, fetching only files under ``static_root``."""
+    import weasyprint
+
+    fetcher = _fetcher_class()(str(static_root))
+    return weasyprint.HTML(string=html, base_url=BASE_URL, url_fetcher=fetcher).write_pdf()
+
+
+def render_pdf(template: str, **ctx) -> bytes:
+    """Render a Jinja template of the app to PDF bytes (call inside a request or app context)."""
+    html = render_template(template, **ctx)
+    return html_to_pdf(html, current_app.static_folder)
+
+
+class PdfCache:
+    """A small least-recently-used cache of rendered PDFs, keyed by what determines the bytes.
+
+    The caller builds the key (for a case sheet: case id, content hash, language, page size
+    and settings version), so an edited case or changed settings simply miss the cache.
+    """
+
+    def __init__(self, max_items: int = 64):
+        self.max_items = max_items
+        self._items: OrderedDict[tuple, bytes] = OrderedDict()
+        self._lock = threading.Lock()
+
+    def get_or_render(self, key: tuple, render: Callable[[], bytes]) -> tuple[bytes, bool]:
+        """Return (pdf bytes, True when served from the cache)."""
+        with self._lock:
+            if key in self._items:
+                self._items.move_to_end(key)
+                return self._items[key], True
+        pdf = render()
+        with self._lock:
+            self._items[key] = pdf
+            self._items.move_to_end(key)
+            while len(self._items) > self.max_items:
+                self._items.popitem(last=False)
+        return pdf, False
+
+    def clear(self) -> None:
+        with self._lock:
+            self._items.clear()
+
+
+cache = PdfCache()
