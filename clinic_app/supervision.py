@@ -5,12 +5,13 @@ methods. No SQL here and no Flask: the connection and today's date are parameter
 from __future__ import annotations
 
 from dataclasses import asdict
-from datetime import date, timedelta
+from datetime import UTC, date, datetime, timedelta
 
 from clinic_app.clinical.rulebook import RULES
 from clinic_app.storage import alerts as alert_store
 from clinic_app.storage import stock as stock_store
 from clinic_app.storage import tallies
+from clinic_app.surveillance import quality
 from clinic_app.surveillance import stock as stock_math
 from clinic_app.surveillance.cholera import CaseFact, cholera_alerts
 from clinic_app.surveillance.ears import METHODS, ears, min_history
@@ -39,6 +40,36 @@ def quality_from_totals(totals: dict) -> list[Indicator]:
             "severe_referred_or_plan_c", totals["severe_referred_or_plan_c"], totals["sev_severe"]
         ),
     ]
+
+
+def _moment(text: str) -> datetime:
+    moment = datetime.fromisoformat(text.replace("Z", "+00:00"))
+    return moment if moment.tzinfo else moment.replace(tzinfo=UTC)
+
+
+def quality_for_period(conn, first: IsoWeek, last: IsoWeek, totals: dict, today: date) -> list:
+    """All five indicators for the weeks ``first`` .. ``last``.
+
+    The first three come from the tally counters; the Plan B reassessment and follow-up
+    indicators from the issue-6 records, or None when those tables are absent.
+    """
+    out: list[Indicator | None] = list(quality_from_totals(totals))
+    lo, hi = first.monday.isoformat(), last.shift(1).monday.isoformat()
+    plan_b = tallies.plan_b_reassessments(conn, lo, hi)
+    out.append(None if plan_b is None else quality.plan_b_reassessed_on_time(
+        quality.QualityCase(severity="some", plan="B", created_at=_moment(r["created_at"]),
+                            reassessed_at=(_moment(r["first_reassessed"])
+                                           if r["first_reassessed"] else None))
+        for r in plan_b))  # fmt: skip
+    visits = tallies.follow_up_visits(conn, lo, hi)
+    out.append(None if visits is None else quality.follow_ups_on_time(
+        (quality.QualityCase(
+            severity="none", plan=None, created_at=None,
+            follow_up_due=date.fromisoformat(v["due_date"]),
+            follow_up_done=(local_date(v["done_at"])
+                            if v["status"] == "done" and v["done_at"] else None))
+         for v in visits), today))  # fmt: skip
+    return out
 
 
 def sum_weeks(weeks: list[dict]) -> dict:

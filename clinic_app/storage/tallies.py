@@ -117,3 +117,40 @@ def workers(conn: sqlite3.Connection) -> list[sqlite3.Row]:
         " FROM users WHERE users.id IN (SELECT DISTINCT user_id FROM tally_daily)"
         " ORDER BY name"
     ).fetchall()
+
+
+def _has_table(conn: sqlite3.Connection, name: str) -> bool:
+    found = conn.execute("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = ?", (name,))
+    return found.fetchone() is not None
+
+
+def plan_b_reassessments(conn: sqlite3.Connection, lo: str, hi: str) -> list[sqlite3.Row] | None:
+    """Active Plan B cases with local date in [lo, hi): created_at and first reassessment time.
+
+    None when this database has no reassessments table (issue 6 not installed).
+    """
+    if not _has_table(conn, "reassessments"):
+        return None
+    return conn.execute(
+        "SELECT cases.created_at, MIN(reassessments.assessed_at) AS first_reassessed"
+        " FROM cases LEFT JOIN reassessments ON reassessments.case_id = cases.id"
+        " WHERE cases.status = 'active' AND cases.plan = 'B'"
+        " AND cases.created_at >= ? AND cases.created_at < ? GROUP BY cases.id",
+        (lo, hi),
+    ).fetchall()
+
+
+def follow_up_visits(conn: sqlite3.Connection, lo: str, hi: str) -> list[sqlite3.Row] | None:
+    """Follow-up visits due in [lo, hi) of active cases (not cancelled): due_date, done_at.
+
+    None when this database has no follow-up table (issue 6 not installed).
+    """
+    if not _has_table(conn, "followup_visits"):
+        return None
+    return conn.execute(
+        "SELECT followup_visits.due_date, followup_visits.status, followup_visits.done_at"
+        " FROM followup_visits JOIN cases ON cases.id = followup_visits.case_id"
+        " WHERE cases.status = 'active' AND followup_visits.status != 'cancelled'"
+        " AND followup_visits.due_date >= ? AND followup_visits.due_date < ?",
+        (lo, hi),
+    ).fetchall()

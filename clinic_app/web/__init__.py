@@ -16,6 +16,7 @@ BLUEPRINTS = [
     "clinic_app.web.pwa",
     "clinic_app.web.enrol",
     "clinic_app.web.admin",
+    "clinic_app.web.supervisor",
 ]
 
 # The content security policy: no inline script or style anywhere.

@@ -111,3 +111,4 @@ def me():
 from clinic_app.web import api_sync  # noqa: E402,F401
 from clinic_app.web import api_clinical  # noqa: E402,F401
 from clinic_app.web import api_followup  # noqa: E402,F401
+from clinic_app.web import api_tallies  # noqa: E402,F401
