@@ -27,6 +27,9 @@ from clinic_app.clinical.types import AssessmentInputError
 ROOT = Path(__file__).resolve().parents[2]
 RUNNER = ROOT / "tests" / "js" / "parity_runner.mjs"
 SAMPLES_PER_COMBINATION = 9
+# Most danger-sign patterns have a danger sign, which masks the routine branches (Plan B
+# reassessment, routine referral): the sign combinations without one get extra samples.
+SAMPLES_WITHOUT_DANGER = 30
 EPSILONS = (1e-9, 0.01)
 
 SETTINGS = [
@@ -216,6 +219,11 @@ def generate(seed: int = 20261202) -> list[tuple[int, object]]:
         for _ in range(SAMPLES_PER_COMBINATION):
             cases.append((rng.randrange(len(SETTINGS)),
                           _valid_input(rng, signs, dangers, ages, weights)))
+    for signs, dangers in _sign_space():
+        if not any(dangers.values()):
+            cases.extend((rng.randrange(len(SETTINGS)),
+                          _valid_input(rng, signs, dangers, ages, weights))
+                         for _ in range(SAMPLES_WITHOUT_DANGER))
     bad = [(i, _bad_input(rng, inp)) for i, inp in rng.sample(cases, len(cases) // 10)]
     return cases + bad
 
