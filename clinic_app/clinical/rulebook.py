@@ -60,6 +60,11 @@ _CORE: dict = {
     # --- Input contract (issue 3) and one rounding rule for both engines ----------------------
     "volume_rounding_ml": {"value": 5, "source": "PRACTICE",
                            "note": "half-up: floor(x / p + 0.5) * p; issue 3 asks no coarser than 10 ml"},
+    # Display helpers of the phone's result screen (spoons for small children).
+    "teaspoon_ml": {"value": 5, "source": "PRACTICE",
+                    "note": "A level teaspoon taken as 5 ml for showing ORS in spoons."},
+    "spoons_max_age_months": {"value": 24, "source": "S02",
+                              "note": "Plan B: a teaspoonful every 1-2 minutes under 2 years."},
     "input_fields": {
         "source": "PRACTICE",
         "note": "Ranges of the issue 3 contract; muac_mm and sodium_mmol_l ranges are our own.",

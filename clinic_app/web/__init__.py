@@ -14,6 +14,7 @@ BLUEPRINTS = [
     "clinic_app.web.cases",
     "clinic_app.web.sheets",
     "clinic_app.web.pwa",
+    "clinic_app.web.assess",
     "clinic_app.web.enrol",
     "clinic_app.web.admin",
     "clinic_app.web.supervisor",

@@ -20,7 +20,7 @@ bp = Blueprint("pwa", __name__)
 
 # Shell assets besides every JavaScript module under static/js/ (globbed, so a new page
 # script or engine module is precached without anyone editing this list).
-SHELL_FILES = ("css/app.css", "icons/icon.svg", "icons/icon-192.png", "icons/icon-512.png",
+SHELL_FILES = ("css/app.css", "css/phone.css", "icons/icon.svg", "icons/icon-192.png", "icons/icon-512.png",
                "icons/maskable-512.png")
 # Pages the worker keeps for offline use (no patient data in them: a blank form and a menu).
 OFFLINE_PAGES = ("/", "/assess")
@@ -73,7 +73,7 @@ def manifest():
 @public
 def service_worker():
     assets, version = _shell()
-    urls = [url_for("static", filename=path) for path in assets]
+    urls = [url_for("static", filename=path) for path in assets] + [url_for("pwa.manifest")]
     script = render_template("pwa/sw.js", version=version, shell_json=json.dumps(urls),
                              pages_json=json.dumps(list(OFFLINE_PAGES)))
     response = current_app.response_class(script, mimetype="text/javascript")

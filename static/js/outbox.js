@@ -155,7 +155,9 @@ export async function probe(fetchFn, timeoutMs = PING_TIMEOUT_MS) {
   const timer = setTimeout(() => controller.abort(), timeoutMs);
   try {
     const response = await fetchFn(PING_URL, { cache: "no-store", signal: controller.signal });
-    return response.ok;
+    if (!response.ok) return false;
+    const body = await response.json();
+    return body.ok === true;  // the service worker answers {"ok": false} when out of range
   } catch {
     return false;
   } finally {
@@ -238,8 +240,8 @@ async function postBatch(fetchFn, spec, token, batch) {
  * something to send. Time functions are injected so the tests drive the clock.
  */
 export class SyncScheduler {
-  constructor(outbox, { fetchFn, onChange = () => {}, setTimer = setTimeout,
-                        clearTimer = clearTimeout, random = Math.random } = {}) {
+  constructor(outbox, { fetchFn, onChange = () => {}, setTimer = (fn, ms) => setTimeout(fn, ms),
+                        clearTimer = (id) => clearTimeout(id), random = Math.random } = {}) {
     Object.assign(this, { outbox, fetchFn, onChange, setTimer, clearTimer, random });
     this.delay = BACKOFF_MIN_MS;
     this.timer = null;

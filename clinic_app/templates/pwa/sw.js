@@ -20,6 +20,11 @@ self.addEventListener("install", (event) => {
     await Promise.all(PAGES.map((url) => fetchPage(url).then((response) => {
       if (response) return pages.put(url, response);
     }).catch(() => undefined)));
+    // The rulebook too (no patient data), so the first offline assessment can compute.
+    const data = await caches.open(DATA_CACHE);
+    await fetchPage("/api/v1/rulebook").then((response) => {
+      if (response) return data.put(new URL("/api/v1/rulebook", self.location).href, response);
+    }).catch(() => undefined);
   })());
 });
 
@@ -90,10 +95,16 @@ self.addEventListener("fetch", (event) => {
   const request = event.request;
   const url = new URL(request.url);
   if (request.method !== "GET" || url.origin !== self.location.origin) return;
-  if (url.pathname === "/api/v1/ping") return;  // the probe must see the real network
+  if (url.pathname === "/api/v1/ping") {
+    // Always the real network; out of range answers {"ok": false} instead of a failed load.
+    event.respondWith(fetch(request).catch(() => new Response(
+      JSON.stringify({ ok: false, offline: true }),
+      { status: 200, headers: { "Content-Type": "application/json" } })));
+    return;
+  }
   if (url.pathname.startsWith("/api/")) {
     event.respondWith(networkFirstApi(request, CACHEABLE_API.includes(url.pathname)));
-  } else if (url.pathname.startsWith("/static/")) {
+  } else if (url.pathname.startsWith("/static/") || url.pathname === "/manifest.webmanifest") {
     event.respondWith(caches.match(request, { cacheName: SHELL_CACHE, ignoreSearch: true })
       .then((cached) => cached || fetch(request)));
   } else if (request.mode === "navigate") {

@@ -1,0 +1,85 @@
+// The result screen's words and numbers on the phone: the twin of clinic_app/web/assess_view.py
+// (same templates, same arithmetic; a browser test compares the two renderings). No DOM.
+
+const SLOT = /%\((\w+)\)s/g;
+
+export function fill(template, params) {
+  return template.replace(SLOT, (_, name) => String(params[name]));
+}
+
+function rule(rules, name) {
+  return rules[name].value;
+}
+
+/** The assess input from the form's values (an object of field name -> string/boolean). */
+export function buildInput(data, rules) {
+  const unit = data.age_unit || "months";
+  let age = parseFloat(data.age_value);
+  if (unit === "weeks") age = age * 7 / rule(rules, "growth_days_per_month");
+  else if (unit === "years") age = age * 12;
+  const input = {
+    age_months: age,
+    danger_signs: Object.fromEntries(rules.danger_signs.inputs.map((name) => [name, Boolean(data[name])])),
+    signs: Object.fromEntries(["condition", "eyes", "drinking", "skin_pinch"]
+      .filter((name) => data[name]).map((name) => [name, data[name]])),
+    oedema_both_feet: Boolean(data.oedema_both_feet),
+    blood_in_stool: Boolean(data.blood_in_stool),
+  };
+  if (data.sex) input.sex = data.sex;
+  if (data.weight_kg !== "" && data.weight_kg != null && !data.no_scale) {
+    input.weight_kg = parseFloat(data.weight_kg);
+  }
+  for (const name of ["muac_mm", "diarrhoea_days"]) {
+    if (data[name] !== "" && data[name] != null) input[name] = parseInt(data[name], 10);
+  }
+  if (data.confirm_implausible_weight) input.confirm_implausible_weight = true;
+  return input;
+}
+
+export function cups(ml, cupMl) {
+  return Math.floor(ml / cupMl * 4 + 0.5) / 4;
+}
+
+export function spoons(ml, rules) {
+  return Math.floor(ml / rule(rules, "teaspoon_ml") + 0.5);
+}
+
+/** The result screen's texts, exactly as the server's present(). */
+export function present(result, settings, ageMonths, rules, w) {
+  const out = {
+    severity: result.severity, severity_text: w[`severity_${result.severity}`],
+    plan_text: w[`plan_${result.plan}`], ors_text: "", schedule: [],
+    cup_text: fill(w.cup_size, { cup_ml: settings.cup_ml }), per_stool_text: "",
+    zinc_text: "", refer_text: w[`refer_${result.refer}`], facility_text: "",
+    actions: (result.actions || []).map((a) => a.text),
+    cautions: (result.cautions || []).map((c) => c.text),
+  };
+  const ors = result.ors;
+  if (ors) {
+    out.ors_text = ors.total_ml != null
+      ? fill(w.ors_total, { total: ors.total_ml, hours: ors.hours, low: ors.low_ml, high: ors.high_ml })
+      : fill(w.ors_range, { low: ors.low_ml, high: ors.high_ml, hours: ors.hours });
+    const small = ageMonths < rule(rules, "spoons_max_age_months");
+    (ors.hourly_ml || []).forEach((ml, index) => {
+      out.schedule.push({
+        hour: fill(w.hour, { n: index + 1 }), ml: fill(w.ml, { ml }),
+        cups: fill(w.cups, { cups: cups(ml, settings.cup_ml) }),
+        spoons: small ? fill(w.spoons, { n: spoons(ml, rules) }) : "",
+      });
+    });
+  }
+  const perStool = result.per_stool_ml;
+  if (perStool) {
+    out.per_stool_text = perStool.as_much_as_wanted ? w.per_stool_any
+      : fill(w.per_stool, { low: perStool.low_ml, high: perStool.high_ml });
+  }
+  const zinc = result.zinc;
+  if (zinc) {
+    out.zinc_text = fill(w.zinc, { mg: zinc.mg_per_day, min: zinc.days_min, max: zinc.days_max });
+  }
+  if (result.refer !== "none" && settings.referral_facility_name) {
+    out.facility_text = fill(w.facility, { name: settings.referral_facility_name,
+                                           phone: settings.referral_facility_phone || "-" });
+  }
+  return out;
+}
