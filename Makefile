@@ -64,6 +64,8 @@ test: setup ## Run the whole test suite (lint, Python, JavaScript, browser)
 	$(MAKE) --no-print-directory test-js
 
 test-js: ## Run the JavaScript engine tests with node --test
+	@if [ -f tests/js/package-lock.json ]; then \
+	  npm ci --prefix tests/js --no-audit --no-fund --loglevel=error; fi
 	@if ls tests/js/*.test.mjs >/dev/null 2>&1; then node --test tests/js/; \
 	else echo "no JavaScript tests yet"; fi
 
