@@ -6,11 +6,12 @@ PY := $(VENV)/bin/python
 FLASK := $(VENV)/bin/flask --app clinic_app
 HOST ?= 127.0.0.1
 PORT ?= 8000
-# Debian packages: Pango for WeasyPrint, Chromium for browser tests, poppler for PDF checks,
-# NSS tools for the TLS browser test, Node.js for the JavaScript engine tests,
-# R's surveillance package as the outside oracle for the EARS C1/C2 test.
-APT_PACKAGES := libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b fonts-dejavu-core \
-	chromium poppler-utils libnss3-tools nodejs r-cran-surveillance
+# Debian packages the app needs: Pango and HarfBuzz for WeasyPrint's PDFs.
+RUN_PACKAGES := libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b fonts-dejavu-core
+# And what the tests need: Chromium for browser tests, poppler for PDF checks, NSS tools for the
+# TLS browser test, Node.js for the JavaScript engine tests, R's surveillance package as the
+# outside oracle for the EARS C1/C2 test.
+TEST_PACKAGES := chromium poppler-utils libnss3-tools nodejs r-cran-surveillance
 STAMP := $(VENV)/.installed
 
 .PHONY: help setup run test test-py test-js lint translations-extract translations-update \
@@ -19,11 +20,18 @@ STAMP := $(VENV)/.installed
 help: ## List the targets
 	@grep -E '^[a-z-]+:.*## ' $(MAKEFILE_LIST) | awk -F':.*## ' '{printf "  %-22s %s\n", $$1, $$2}'
 
-setup: system-packages $(STAMP) translations-compile ## Install everything the app and tests need (idempotent)
+setup: system-packages $(STAMP) translations-compile ## Install what the app needs (idempotent, quick when done)
 
-.PHONY: system-packages
+.PHONY: system-packages test-packages
 system-packages:
-	@missing=$$(for p in $(APT_PACKAGES); do dpkg -s $$p >/dev/null 2>&1 || echo $$p; done); \
+	@$(MAKE) --no-print-directory apt-install PACKAGES="$(RUN_PACKAGES)"
+
+test-packages:
+	@$(MAKE) --no-print-directory apt-install PACKAGES="$(TEST_PACKAGES)"
+
+.PHONY: apt-install
+apt-install:
+	@missing=$$(for p in $(PACKAGES); do dpkg -s $$p >/dev/null 2>&1 || echo $$p; done); \
 	if [ -n "$$missing" ]; then \
 	  echo "Installing Debian packages:" $$missing; \
 	  SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); \
@@ -58,7 +66,7 @@ run: setup ## Serve the app on http://127.0.0.1:8000 with the demo clinic
 	@$(FLASK) seed-demo
 	@$(FLASK) serve --host $(HOST) --port $(PORT)
 
-test: setup ## Run the whole test suite (lint, Python, JavaScript, browser)
+test: setup test-packages ## Set up, install the test tools, run the whole suite
 	$(MAKE) --no-print-directory lint
 	$(VENV)/bin/pytest -q -p no:cacheprovider
 	$(MAKE) --no-print-directory test-js

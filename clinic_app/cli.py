@@ -71,13 +71,16 @@ def seed_demo_command():
     from clinic_app import demo
 
     conn = open_db()
-    created = demo.seed(conn)
-    if not created:
+    logins = demo.seed(conn)
+    if logins:
+        click.echo("Demo clinic created.")
+    else:
         click.echo("The database already has users; demo data not added.")
-        return
-    click.echo("Demo clinic created. Logins (user name / password):")
-    for username, role, password in created:
-        click.echo(f"  {username:<12} {role:<11} {password}")
+        logins = demo.working_logins(conn)
+    if logins:
+        click.echo("Demo logins (user name, role, password):")
+        for username, role, password in logins:
+            click.echo(f"  {username:<12} {role:<11} {password}")
 
 
 @click.command("export-rules")

@@ -8,7 +8,7 @@ from __future__ import annotations
 import sqlite3
 
 from clinic_app import clock
-from clinic_app.passwords import hash_password
+from clinic_app.passwords import hash_password, verify_password
 from clinic_app.storage import db, users
 
 DISTRICT = "Lukanda Hills"
@@ -35,3 +35,13 @@ def seed(conn: sqlite3.Connection) -> list[tuple[str, str, str]]:
             users.create(conn, username=username, role=role, password_hash=hash_password(password),
                          created_at=at, display_name=name, area=area)
     return [(u, r, p) for u, r, _n, _a, p in STAFF]
+
+
+def working_logins(conn: sqlite3.Connection) -> list[tuple[str, str, str]]:
+    """The demo logins that still work (their account is active and the password unchanged)."""
+    working = []
+    for username, role, _n, _a, password in STAFF:
+        user = users.by_username(conn, username)
+        if user and user["active"] and verify_password(user["password_hash"], password):
+            working.append((username, role, password))
+    return working

@@ -77,6 +77,7 @@ def test_seed_demo_prints_logins_once(tmp_path):
     assert first.returncode == 0 and "amina" in first.stdout and "demo-chw-amina" in first.stdout
     second = flask(["seed-demo"], env)
     assert "already has users" in second.stdout
+    assert "demo-chw-amina" in second.stdout  # make run prints the logins every time
 
 
 def test_serve_serves_the_login_page(tmp_path):
