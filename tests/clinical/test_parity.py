@@ -19,6 +19,8 @@ import shutil
 import subprocess
 from pathlib import Path
 
+import pytest
+
 from clinic_app.clinical import ClinicSettings, assess
 from clinic_app.clinical.growth import age_days, tables_json
 from clinic_app.clinical.rulebook import RULES, rulebook_json
@@ -307,3 +309,27 @@ def test_the_javascript_engine_matches_the_python_core_on_every_field(tmp_path):
     assert not failures, f"{len(failures)} of {len(cases)} inputs differ:\n{report}"
     assert outcomes["ok"] >= 9_000
 
+
+
+ODD_VALUES = [
+    {"score_items": {"cds": {"eyes": ["normal"]}}},
+    {"score_items": {"dhaka": {"tears": {"absent": True}}}},
+    {"muac_mm": 10 ** 400},
+    {"age_months": 10 ** 400},
+    {"diarrhoea_days": -(10 ** 400)},
+]
+
+
+@pytest.mark.xfail(strict=True, raises=(TypeError, OverflowError),
+                   reason="the core raises TypeError for a list or object as a score finding and "
+                          "OverflowError for an integer beyond float range; the engine answers "
+                          "422 for both (reported to the core)")
+@pytest.mark.parametrize("extra", ODD_VALUES, ids=["list-finding", "object-finding",
+                                                   "huge-muac", "huge-age", "huge-negative-days"])
+def test_both_engines_answer_422_for_values_json_allows_but_the_contract_does_not(tmp_path, extra):
+    inputs = {"age_months": 30, "signs": {"condition": "well", "eyes": "normal",
+                                          "drinking": "normal", "skin_pinch": "quick"}, **extra}
+    [js] = run_node(tmp_path, [(0, inputs)])
+    py = python_result(SETTINGS[0], inputs)
+    assert py["error"]["code"] == "invalid_input"
+    assert differences(py, js) == []
