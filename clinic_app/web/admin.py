@@ -34,7 +34,7 @@ from clinic_app.web.admin_forms import (
     plan_b_choices,
 )
 from clinic_app.web.auth import roles_required
-from clinic_app.web.enrol import app_origin
+from clinic_app.web.enrol import app_origin, enrol_address
 
 bp = Blueprint("admin", __name__, url_prefix="/admin")
 
@@ -82,7 +82,7 @@ def index():
         "admin/index.html",
         cert=certificate_status(clock.now()),
         backup=backup_status(conn),
-        enrol_url=url_for("enrol.index", _external=False),
+        enrol_url=enrol_address(),
         origin=app_origin(),
         rulebook_version=rulebook_version(settings.load(conn)),
         warning_days=CERT_WARNING_DAYS,

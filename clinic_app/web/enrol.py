@@ -64,14 +64,31 @@ def ca_certificate():
     return response
 
 
+def enrol_address() -> str:
+    """The plain-HTTP address of this page, where a phone starts before it trusts the CA."""
+    cfg = current_app.config
+    return serving.origin(str(cfg["HOST"]), int(cfg["PORT"]), "http") + "/enrol"
+
+
+def _qr_svg(text: str) -> Response:
+    buffer = io.BytesIO()
+    segno.make(text, error="m").save(buffer, kind="svg", scale=6, border=2, xmldecl=False,
+                                     title=text)
+    return Response(buffer.getvalue(), mimetype="image/svg+xml")
+
+
 @bp.get("/qr.svg")
 @public
 def qr_code():
-    buffer = io.BytesIO()
-    segno.make(app_origin() + "/", error="m").save(
-        buffer, kind="svg", scale=6, border=2, xmldecl=False, title=app_origin()
-    )
-    return Response(buffer.getvalue(), mimetype="image/svg+xml")
+    """QR code of the HTTPS app address (scanned once the CA is installed)."""
+    return _qr_svg(app_origin() + "/")
+
+
+@bp.get("/enrol-qr.svg")
+@public
+def enrol_qr_code():
+    """QR code of this enrolment page's plain-HTTP address (shown on the admin page)."""
+    return _qr_svg(enrol_address())
 
 
 @bp.get("/ready")

@@ -75,3 +75,15 @@ def test_plain_http_serves_only_the_enrolment_paths(app, users):
         assert (response.status_code, response.headers["Location"]) == (302, "/enrol"), path
     response = plain.post("/api/v1/login", json={"username": "nurse", "password": "x"})
     assert response.status_code == 302
+
+
+def test_the_admin_overview_shows_a_qr_code_of_the_plain_http_enrolment_page(app, client,
+                                                                              users):
+    from tests.conftest import login
+
+    _init_ca(app)
+    login(client, "admin")
+    page = client.get("/admin").get_data(as_text=True)
+    assert 'id="enrol-address">http://127.0.0.1:8000/enrol<' in page
+    svg = client.get("/enrol/enrol-qr.svg")
+    assert svg.mimetype == "image/svg+xml" and b"http://127.0.0.1:8000/enrol" in svg.data

@@ -83,3 +83,28 @@ def test_cheroot_serves_https_that_verifies_against_the_clinic_ca(tmp_path):
     finally:
         server.stop()
         thread.join(10)
+
+
+def test_the_daily_backup_loop_backs_up_once_and_stops_when_asked(tmp_path):
+    import sqlite3
+
+    db = tmp_path / "clinic.sqlite3"
+    conn = sqlite3.connect(db)
+    conn.executescript("CREATE TABLE users (id INTEGER PRIMARY KEY); PRAGMA user_version = 1;")
+    conn.close()
+    stop = threading.Event()
+    stop.set()  # one pass, then return
+    said = []
+    serving.daily_backup_loop(db, tmp_path / "backups", lambda: REAL_NOW, stop, said.append)
+    assert [p.name for p in (tmp_path / "backups").iterdir()] == [
+        f"daily-{REAL_NOW:%Y%m%dT%H%M%S}Z.sqlite3"]
+    assert said and said[0].startswith("Daily backup written to")
+
+
+def test_a_failing_daily_backup_is_reported_and_does_not_raise(tmp_path):
+    stop = threading.Event()
+    stop.set()
+    said = []
+    serving.daily_backup_loop(tmp_path / "missing.sqlite3", tmp_path / "b", lambda: REAL_NOW,
+                              stop, said.append)
+    assert said == [f"Daily backup failed: There is no database at {tmp_path / 'missing.sqlite3'}."]
