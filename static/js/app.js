@@ -119,5 +119,13 @@ async function startOutbox() {
   return { outbox, scheduler, refresh };
 }
 
+// Logging out drops the cached pages (they carry the user's name); the outbox stays, so
+// records not yet sent are never lost.
+for (const logout of document.querySelectorAll('form[action$="/logout"]')) {
+  logout.addEventListener("submit", () => {
+    navigator.serviceWorker?.controller?.postMessage({ type: "FORGET_PAGES" });
+  });
+}
+
 startServiceWorker();
 export const app = startOutbox().catch(() => null);

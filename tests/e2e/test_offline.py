@@ -62,7 +62,7 @@ def phone(browser, tmp_path):
     context.close()
 
 
-def poll(page, script, timeout=15.0, arg=None):
+def poll(page, script, timeout=40.0, arg=None):
     """Evaluate a (possibly async) function until it returns true."""
     deadline = time.monotonic() + timeout
     while time.monotonic() < deadline:
@@ -81,7 +81,7 @@ def log_in(page, url):
 
 
 def wait_until_ready_offline(page):
-    page.wait_for_selector("#assess-form[data-ready=offline]", state="attached", timeout=15000)
+    page.wait_for_selector("#assess-form[data-ready=offline]", state="attached", timeout=40000)
 
 
 def fill_child(page, values):
@@ -149,7 +149,7 @@ def test_three_assessments_made_offline_reach_the_server_exactly_once(live_serve
     live_server.start()  # back in range
     page.click("[data-outbox-send]")
     poll(page, "() => document.querySelector('[data-outbox-count]').textContent"
-               ".includes('Nothing')", timeout=20)
+               ".includes('Nothing')", timeout=40)
     conn = db.connect(str(live_server.workdir / "clinic.sqlite3"))
     try:
         assert cases.count(conn) == 3
