@@ -23,6 +23,7 @@ from flask import (
     url_for,
 )
 from flask_babel import force_locale
+from markupsafe import Markup
 
 from clinic_app import caregiver_sheet, clock, pdf
 from clinic_app.i18n import _, available_locales, get_locale, text_direction
@@ -72,9 +73,25 @@ def _sheet_options(default_lang: str) -> tuple[str, str]:
 
 
 def _render(sheet: dict, lang: str, size: str, *, toolbar: dict | None = None) -> str:
+    # The screen toolbar speaks the user's interface language; the sheet the caregiver's.
+    # (``?lang=`` names the caregiver's language here, so the session decides the interface.)
+    toolbar_html = None
+    if toolbar:
+        ui_lang = _ui_locale()
+        with force_locale(ui_lang):
+            toolbar_html = Markup(render_template("sheets/_toolbar.html", toolbar=toolbar,
+                                                  ui_lang=ui_lang,
+                                                  ui_dir=text_direction(ui_lang)))
     with force_locale(lang):
         return render_template(TEMPLATE, s=sheet, lang=lang, dir=text_direction(lang),
-                               size=size, toolbar=toolbar)
+                               size=size, toolbar_html=toolbar_html)
+
+
+def _ui_locale() -> str:
+    locales = available_locales()
+    if session.get("lang") in locales:
+        return session["lang"]
+    return request.accept_languages.best_match(locales) or current_app.config["DEFAULT_LOCALE"]
 
 
 def _build(result: dict, age_months: float, lang: str, seen_on: date, conn) -> dict:
