@@ -17,8 +17,14 @@ from clinic_app.surveillance.cholera import CaseFact, cholera_alerts
 from clinic_app.surveillance.ears import METHODS, ears, min_history
 from clinic_app.surveillance.isoweek import IsoWeek, local_date, week_of
 from clinic_app.surveillance.quality import Indicator
-from clinic_app.surveillance.rules import CHOLERA_CLUSTER_WINDOW_DAYS, STOCK_AVERAGE_WEEKS
+from clinic_app.surveillance.rules import (
+    CHOLERA_CLUSTER_WINDOW_DAYS,
+    CHOLERA_SUSPECT_MIN_AGE_MONTHS,
+    STOCK_AVERAGE_WEEKS,
+)
 
+# A large outbreak can chain hundreds of cases; the alert lists the first ones and the count.
+ALERT_CASE_IDS_SHOWN = 50
 # Enough weekly history for C3 (11 earlier weeks) plus the evaluated week.
 EARS_WEEKS = min_history("C3") + 1
 
@@ -47,21 +53,31 @@ def _moment(text: str) -> datetime:
     return moment if moment.tzinfo else moment.replace(tzinfo=UTC)
 
 
-def quality_for_period(conn, first: IsoWeek, last: IsoWeek, totals: dict, today: date) -> list:
-    """All five indicators for the weeks ``first`` .. ``last``.
+def quality_for_period(conn, first: IsoWeek, last: IsoWeek, totals: dict, today: date,
+                       where: tallies.TallyFilter | None = None) -> list:  # fmt: skip
+    """All five indicators for the weeks ``first`` .. ``last`` and the same filter as ``totals``.
 
     The first three come from the tally counters; the Plan B reassessment and follow-up
     indicators from the issue-6 records, or None when those tables are absent.
     """
     out: list[Indicator | None] = list(quality_from_totals(totals))
     lo, hi = first.monday.isoformat(), last.shift(1).monday.isoformat()
-    plan_b = tallies.plan_b_reassessments(conn, lo, hi)
-    out.append(None if plan_b is None else quality.plan_b_reassessed_on_time(
-        quality.QualityCase(severity="some", plan="B", created_at=_moment(r["created_at"]),
-                            reassessed_at=(_moment(r["first_reassessed"])
-                                           if r["first_reassessed"] else None))
-        for r in plan_b))  # fmt: skip
-    visits = tallies.follow_up_visits(conn, lo, hi)
+    rows = tallies.plan_b_reassessments(conn, lo, hi, where)
+    if rows is None:
+        out.append(None)
+    else:
+        first_seen: dict[str, quality.QualityCase] = {}
+        for r in rows:
+            case = quality.QualityCase(severity="some", plan="B",
+                                       created_at=_moment(r["created_at"]),
+                                       reassessed_at=_moment(r["assessed_at"]))  # fmt: skip
+            known = first_seen.get(r["id"])
+            if known is None or case.reassessed_at < known.reassessed_at:
+                first_seen[r["id"]] = case
+        on_time = quality.plan_b_reassessed_on_time(first_seen.values())
+        # Plan B cases never reassessed count in the denominator only.
+        out.append(Indicator(on_time.key, on_time.numerator, totals["plan_b"]))
+    visits = tallies.follow_up_visits(conn, lo, hi, where)
     out.append(None if visits is None else quality.follow_ups_on_time(
         (quality.QualityCase(
             severity="none", plan=None, created_at=None,
@@ -106,7 +122,8 @@ def _cholera_facts(conn, today: date) -> list[CaseFact]:
     acute_below = RULES["cholera"]["acute_max_days_exclusive"]
     facts = []
     for row in alert_store.cholera_case_rows(
-        conn, since.isoformat(), (today + timedelta(days=1)).isoformat()
+        conn, since.isoformat(), (today + timedelta(days=1)).isoformat(),
+        CHOLERA_SUSPECT_MIN_AGE_MONTHS,  # both rules need at least this age
     ):
         acute = row["days"] is None or row["days"] < acute_below
         facts.append(
@@ -133,7 +150,9 @@ def refresh_alerts(conn, today: date, raised_at: str, low_weeks: float) -> int:
         new += alert_store.upsert(
             conn, key=alert.key, kind="cholera_" + alert.rule, area=alert.area,
             week=str(week_of(alert.last_day)), raised_at=raised_at,
-            detail={"case_ids": list(alert.case_ids), "first_day": alert.first_day.isoformat(),
+            detail={"cases": len(alert.case_ids),
+                    "case_ids": list(alert.case_ids[:ALERT_CASE_IDS_SHOWN]),
+                    "first_day": alert.first_day.isoformat(),
                     "last_day": alert.last_day.isoformat()},
         )  # fmt: skip
     week = last_complete_week(today)

@@ -62,9 +62,12 @@ def acknowledge(
     return done.rowcount == 1
 
 
-def cholera_case_rows(conn: sqlite3.Connection, since_day: str, until_day: str) -> list:
-    """Active cases from ``since_day`` up to (not including) ``until_day`` that could count
-    toward a cholera alert: suspected cholera, severe dehydration, or a death.
+def cholera_case_rows(
+    conn: sqlite3.Connection, since_day: str, until_day: str, min_age_months: float
+) -> list:
+    """Active cases from ``since_day`` up to (not including) ``until_day``, aged at least
+    ``min_age_months``, that could count toward a cholera alert: suspected cholera, severe
+    dehydration, or a death.
 
     ``blood`` and ``days`` come from the stored assessment input (AWD = watery and acute).
     """
@@ -72,8 +75,9 @@ def cholera_case_rows(conn: sqlite3.Connection, since_day: str, until_day: str) 
         "SELECT id, area, created_at, age_months, severity, suspected_cholera, outcome,"
         " json_extract(input, '$.blood_in_stool') AS blood,"
         " json_extract(input, '$.diarrhoea_days') AS days"
-        " FROM cases WHERE status = 'active' AND created_at >= ? AND created_at < ?"
+        " FROM cases INDEXED BY cases_alert_scan"
+        " WHERE created_at >= ? AND created_at < ? AND status = 'active' AND age_months >= ?"
         " AND (suspected_cholera != 0 OR severity = 'severe' OR outcome = 'died')"
         " ORDER BY created_at",
-        (since_day, until_day),
+        (since_day, until_day, min_age_months),
     ).fetchall()

@@ -11,7 +11,7 @@ from __future__ import annotations
 import sqlite3
 from dataclasses import dataclass
 
-from clinic_app.surveillance.agegroups import AGE_GROUP_KEYS
+from clinic_app.surveillance.agegroups import AGE_GROUP_KEYS, age_bounds
 from clinic_app.surveillance.isoweek import IsoWeek, week_range
 
 # The counters of tally_daily, in the order the pages show them.
@@ -53,6 +53,25 @@ class TallyFilter:
                 params[column] = value
         if self.age_group is not None and self.age_group not in AGE_GROUP_KEYS:
             raise ValueError(f"unknown age group {self.age_group!r}")
+        return "".join(clauses), params
+
+    def case_where(self) -> tuple[str, dict]:
+        """The same filters as WHERE clauses on the cases table."""
+        clauses, params = [], {}
+        for column in ("area", "user_id"):
+            if getattr(self, column) not in (None, ""):
+                clauses.append(f" AND cases.{column} = :{column}")
+                params[column] = getattr(self, column)
+        if self.sex:
+            clauses.append(" AND coalesce(cases.sex, '') = :sex")
+            params["sex"] = self.sex
+        if self.age_group:
+            low, high = age_bounds(self.age_group)
+            clauses.append(" AND cases.age_months >= :age_low")
+            params["age_low"] = low
+            if high is not None:
+                clauses.append(" AND cases.age_months < :age_high")
+                params["age_high"] = high
         return "".join(clauses), params
 
 
@@ -124,33 +143,39 @@ def _has_table(conn: sqlite3.Connection, name: str) -> bool:
     return found.fetchone() is not None
 
 
-def plan_b_reassessments(conn: sqlite3.Connection, lo: str, hi: str) -> list[sqlite3.Row] | None:
-    """Active Plan B cases with local date in [lo, hi): created_at and first reassessment time.
-
-    None when this database has no reassessments table (issue 6 not installed).
+def plan_b_reassessments(
+    conn: sqlite3.Connection, lo: str, hi: str, where: TallyFilter | None = None
+) -> list[sqlite3.Row] | None:
+    """Every reassessment of active Plan B cases with local date in [lo, hi) that match the
+    filter: case id, case created_at, reassessment assessed_at. Cases never reassessed are not
+    listed (count them from the tallies' plan_b). None without a reassessments table.
     """
     if not _has_table(conn, "reassessments"):
         return None
+    extra, params = (where or TallyFilter()).case_where()
+    # Reassessments are few next to cases, so walk them and look each case up by id.
     return conn.execute(
-        "SELECT cases.created_at, MIN(reassessments.assessed_at) AS first_reassessed"
-        " FROM cases LEFT JOIN reassessments ON reassessments.case_id = cases.id"
+        "SELECT cases.id, cases.created_at, reassessments.assessed_at"
+        " FROM reassessments JOIN cases ON cases.id = reassessments.case_id"
         " WHERE cases.status = 'active' AND cases.plan = 'B'"
-        " AND cases.created_at >= ? AND cases.created_at < ? GROUP BY cases.id",
-        (lo, hi),
+        f" AND cases.created_at >= :lo AND cases.created_at < :hi{extra}",
+        {"lo": lo, "hi": hi, **params},
     ).fetchall()
 
 
-def follow_up_visits(conn: sqlite3.Connection, lo: str, hi: str) -> list[sqlite3.Row] | None:
-    """Follow-up visits due in [lo, hi) of active cases (not cancelled): due_date, done_at.
-
-    None when this database has no follow-up table (issue 6 not installed).
+def follow_up_visits(
+    conn: sqlite3.Connection, lo: str, hi: str, where: TallyFilter | None = None
+) -> list[sqlite3.Row] | None:
+    """Follow-up visits due in [lo, hi) of active cases matching the filter (not cancelled):
+    due_date, status, done_at. None when this database has no follow-up table.
     """
     if not _has_table(conn, "followup_visits"):
         return None
+    extra, params = (where or TallyFilter()).case_where()
     return conn.execute(
         "SELECT followup_visits.due_date, followup_visits.status, followup_visits.done_at"
         " FROM followup_visits JOIN cases ON cases.id = followup_visits.case_id"
         " WHERE cases.status = 'active' AND followup_visits.status != 'cancelled'"
-        " AND followup_visits.due_date >= ? AND followup_visits.due_date < ?",
-        (lo, hi),
+        f" AND followup_visits.due_date >= :lo AND followup_visits.due_date < :hi{extra}",
+        {"lo": lo, "hi": hi, **params},
     ).fetchall()

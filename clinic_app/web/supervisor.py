@@ -136,7 +136,7 @@ def report_context(conn, first, last, where) -> dict:
     return {
         "first": first, "last": last, "where": where, "weeks": weeks, "totals": totals,
         "rows": ROW_LABELS, "quality": supervision.quality_for_period(
-            conn, first, last, totals, today()),
+            conn, first, last, totals, today(), where),
         "quality_labels": QUALITY_LABELS, "severity_chart": severity_chart,
         "multiples": multiples, "ears": ears, "ears_week": ears_week,
         "open_alerts": alert_store.listing(conn, open_only=True),
