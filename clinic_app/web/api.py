@@ -109,6 +109,7 @@ def me():
 
 # Route modules that extend this blueprint (imported last: they need `bp` defined above).
 from clinic_app.web import api_sync  # noqa: E402,F401
+from clinic_app.web import openapi  # noqa: E402,F401
 from clinic_app.web import api_clinical  # noqa: E402,F401
 from clinic_app.web import api_followup  # noqa: E402,F401
 from clinic_app.web import api_tallies  # noqa: E402,F401
