@@ -17,6 +17,7 @@ MENU = [
     ("cases.index", lazy_gettext("Cases"), ALL),
     ("cases.due", lazy_gettext("Due now"), ("chw", "nurse")),
     ("supervisor.index", lazy_gettext("Weekly tallies and alerts"), ("supervisor", "admin")),
+    ("supervisor.supplies", lazy_gettext("ORS and zinc stock"), ("nurse",)),
     ("admin.index", lazy_gettext("Clinic settings and users"), ("admin",)),
 ]
 

@@ -188,3 +188,11 @@ def test_the_weekly_report_pdf_is_a_pdf_and_logged(client, as_user, app, seeded,
     conn = db.connect(app.config["DATABASE"])
     kinds = [r[0] for r in conn.execute("SELECT record_type FROM audit_log WHERE action='export'")]
     assert kinds == ["weekly_report_pdf"]
+
+
+def test_the_home_menu_leads_each_role_to_its_supervisor_pages(client, as_user):
+    as_user("nurse")
+    home = client.get("/").get_data(as_text=True)
+    assert "/supervisor/supplies" in home and 'href="/supervisor/"' not in home
+    as_user("supervisor")  # a new login replaces the nurse's session
+    assert 'href="/supervisor/"' in client.get("/").get_data(as_text=True)
