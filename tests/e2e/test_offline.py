@@ -142,7 +142,7 @@ def test_three_assessments_made_offline_reach_the_server_exactly_once(live_serve
         page.click("#save-button")
         page.wait_for_selector("#saved-note", state="visible")
     poll(page, "() => document.querySelector('[data-outbox-count]').textContent"
-               ".includes('3 waiting to send')", timeout=5)
+               ".includes('3 waiting to send')", timeout=20)
     waiting = page.evaluate(READ_OUTBOX)
     assert len(waiting["items"]) == 3
 
@@ -171,6 +171,11 @@ def test_three_assessments_made_offline_reach_the_server_exactly_once(live_serve
     assert cases.count(conn) == 3
     conn.close()
 
+    cached = page.evaluate("""() => caches.keys().then(names => Promise.all(names.map(
+        n => caches.open(n).then(c => c.keys()).then(ks => ks.map(k => k.url))))).then(
+        lists => lists.flat())""")
+    assert any(url.endswith("/assess") for url in cached)
+    assert not [url for url in cached if "/api/v1/cases" in url]  # patient data stays in IDB
     cdp = page.context.new_cdp_session(page)
     errors = cdp.send("Page.getInstallabilityErrors")
     assert errors["installabilityErrors"] == [], json.dumps(errors)
