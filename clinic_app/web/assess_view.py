@@ -38,6 +38,7 @@ def words() -> dict[str, str]:
         "plan_SAM": _("Malnutrition rehydration protocol (not Plan B or C)"),
         "ors_total": _("ORS: %(total)s ml over %(hours)s hours (table %(low)s-%(high)s ml)"),
         "ors_range": _("ORS: %(low)s-%(high)s ml over %(hours)s hours"),
+        "ors_total_only": _("ORS: %(total)s ml over %(hours)s hours"),
         "hour": _("Hour %(n)s"), "ml": _("%(ml)s ml"),
         "cups": _("cups: %(cups)s"), "spoons": _("teaspoons: %(n)s"),
         "cup_size": _("One cup = %(cup_ml)s ml"),
@@ -98,11 +99,17 @@ def present(result: dict, settings, age_months: float) -> dict:
            "cautions": [c["text"] for c in result.get("cautions", [])]}
     ors = result.get("ors")
     if ors:
-        out["ors_text"] = (fill(w["ors_total"], total=ors["total_ml"], hours=ors["hours"],
-                                low=ors["low_ml"], high=ors["high_ml"])
-                           if ors.get("total_ml") is not None else
-                           fill(w["ors_range"], low=ors["low_ml"], high=ors["high_ml"],
-                                hours=ors["hours"]))
+        if ors.get("total_ml") is None and ors.get("low_ml") is None:
+            pass  # no weight and no table row: the actions say to weigh the child
+        elif ors.get("total_ml") is None:
+            out["ors_text"] = fill(w["ors_range"], low=ors["low_ml"], high=ors["high_ml"],
+                                   hours=ors["hours"])
+        elif ors.get("low_ml") is None:  # beyond the table's last row
+            out["ors_text"] = fill(w["ors_total_only"], total=ors["total_ml"],
+                                   hours=ors["hours"])
+        else:
+            out["ors_text"] = fill(w["ors_total"], total=ors["total_ml"], hours=ors["hours"],
+                                   low=ors["low_ml"], high=ors["high_ml"])
         small = age_months < RULES["spoons_max_age_months"]["value"]
         for hour, ml in enumerate(ors.get("hourly_ml") or [], start=1):
             out["schedule"].append({

@@ -56,9 +56,16 @@ export function present(result, settings, ageMonths, rules, w) {
   };
   const ors = result.ors;
   if (ors) {
-    out.ors_text = ors.total_ml != null
-      ? fill(w.ors_total, { total: ors.total_ml, hours: ors.hours, low: ors.low_ml, high: ors.high_ml })
-      : fill(w.ors_range, { low: ors.low_ml, high: ors.high_ml, hours: ors.hours });
+    if (ors.total_ml == null && ors.low_ml == null) {
+      // no weight and no table row: the actions say to weigh the child
+    } else if (ors.total_ml == null) {
+      out.ors_text = fill(w.ors_range, { low: ors.low_ml, high: ors.high_ml, hours: ors.hours });
+    } else if (ors.low_ml == null) {  // beyond the table's last row
+      out.ors_text = fill(w.ors_total_only, { total: ors.total_ml, hours: ors.hours });
+    } else {
+      out.ors_text = fill(w.ors_total, { total: ors.total_ml, hours: ors.hours,
+                                         low: ors.low_ml, high: ors.high_ml });
+    }
     const small = ageMonths < rule(rules, "spoons_max_age_months");
     (ors.hourly_ml || []).forEach((ml, index) => {
       out.schedule.push({
