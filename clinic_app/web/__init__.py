@@ -17,6 +17,7 @@ BLUEPRINTS = [
     "clinic_app.web.assess",
     "clinic_app.web.enrol",
     "clinic_app.web.admin",
+    "clinic_app.web.account",
     "clinic_app.web.supervisor",
 ]
 
@@ -40,6 +41,9 @@ def _gate():
     if request.endpoint == "static":
         return None
     auth.load_user()
+    changing = import_module("clinic_app.web.account").enforce_password_change()
+    if changing is not None:
+        return changing  # a one-time password must be replaced first (issue 8)
     view = current_app.view_functions.get(request.endpoint)
     if getattr(view, "is_public", False) or g.user is not None:
         return None

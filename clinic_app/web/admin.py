@@ -113,7 +113,7 @@ def settings_page():
         new = dataclasses.replace(current, **{
             name: _clean(form[name].data) for name in _CLINICAL_FIELDS if name in form})
         new_profile = profile.ClinicProfile(
-            clinic_name=form.clinic_name.data.strip(),
+            clinic_name=(form.clinic_name.data or "").strip(),
             stock_alert_weeks=form.stock_alert_weeks.data,
             default_languages=tuple(form.default_languages.data),
         )
@@ -156,7 +156,8 @@ def users_page():
                 user_id = users.create(
                     conn, username=username, role=form.role.data, password_hash=hashed,
                     created_at=clock.iso(clock.now()),
-                    display_name=form.display_name.data.strip(), area=form.area.data.strip())
+                    display_name=(form.display_name.data or "").strip(),
+                    area=(form.area.data or "").strip())
                 users.set_password(conn, user_id, hashed, must_change=True)
                 _audit(conn, "user_create", "user", user_id)
             created = {"username": username, "password": password}

@@ -106,4 +106,5 @@ RULES: dict[str, Rule] = {
     "admin.devices_page": Rule(roles=ADMIN),
     "admin.revoke_device": Rule(roles=ADMIN),
     "admin.settings_page": Rule(roles=ADMIN),
+    "account.password": Rule(),  # every user: replace a one-time password
 }
