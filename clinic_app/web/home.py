@@ -19,6 +19,7 @@ MENU = [
     ("supervisor.index", lazy_gettext("Weekly tallies and alerts"), ("supervisor", "admin")),
     ("supervisor.supplies", lazy_gettext("ORS and zinc stock"), ("nurse",)),
     ("admin.index", lazy_gettext("Clinic settings and users"), ("admin",)),
+    ("enrol.ready", lazy_gettext("Is this phone ready to work offline?"), ("chw", "nurse")),
 ]
 
 

@@ -87,3 +87,10 @@ def test_the_admin_overview_shows_a_qr_code_of_the_plain_http_enrolment_page(app
     assert 'id="enrol-address">http://127.0.0.1:8000/enrol<' in page
     svg = client.get("/enrol/enrol-qr.svg")
     assert svg.mimetype == "image/svg+xml" and b"http://127.0.0.1:8000/enrol" in svg.data
+
+
+def test_a_health_worker_finds_the_device_ready_check_on_the_start_page(client, users):
+    from tests.conftest import login
+
+    login(client, "chw")
+    assert 'href="/enrol/ready"' in client.get("/").get_data(as_text=True)
