@@ -61,18 +61,71 @@ def _fetcher_class():
     return LocalStaticFetcher
 
 
-def html_to_pdf(html: str, static_root: str | Path) -> bytes:
-    """Turn an HTML string into PDF bytes, fetching only files under ``static_root``."""
+def local_fetcher(static_root: str | Path):
+    """A WeasyPrint URL fetcher that serves only files under ``static_root``."""
+    return _fetcher_class()(str(static_root))
+
+
+class _Shared:
+    """Parsed stylesheets, their loaded fonts and decoded images, kept between renders.
+
+    Loading six font files and parsing every pictogram again for each sheet costs more than
+    laying the page out; one lock serialises renders because these objects are shared.
+    """
+
+    def __init__(self, static_root: str):
+        from weasyprint.text.fonts import FontConfiguration
+
+        self.fetcher = local_fetcher(static_root)
+        self.fonts = FontConfiguration()
+        self.stylesheets: dict[str, object] = {}
+        self.images: dict = {}
+        self.lock = threading.Lock()
+
+    def stylesheet(self, name: str):
+        import weasyprint
+
+        if name not in self.stylesheets:
+            self.stylesheets[name] = weasyprint.CSS(url=f"{BASE_URL}static/{name}",
+                                                    url_fetcher=self.fetcher,
+                                                    font_config=self.fonts)
+        return self.stylesheets[name]
+
+
+_shared: dict[str, _Shared] = {}
+_shared_lock = threading.Lock()
+
+
+def _state(static_root: str) -> _Shared:
+    with _shared_lock:
+        if static_root not in _shared:
+            _shared[static_root] = _Shared(static_root)
+        return _shared[static_root]
+
+
+def html_to_pdf(html: str, static_root: str | Path, stylesheets: tuple[str, ...] = ()) -> bytes:
+    """Turn an HTML string into PDF bytes, fetching only files under ``static_root``.
+
+    ``stylesheets`` (paths under static/, e.g. "css/sheet.css") are parsed once per process
+    and applied to the page; the HTML should then not link them itself.
+    """
     import weasyprint
 
-    fetcher = _fetcher_class()(str(static_root))
-    return weasyprint.HTML(string=html, base_url=BASE_URL, url_fetcher=fetcher).write_pdf()
+    state = _state(str(static_root))
+    with state.lock:
+        sheets = [state.stylesheet(name) for name in stylesheets]
+        document = weasyprint.HTML(string=html, base_url=BASE_URL, url_fetcher=state.fetcher)
+        return document.write_pdf(stylesheets=sheets, font_config=state.fonts,
+                                  cache=state.images)
 
 
-def render_pdf(template: str, **ctx) -> bytes:
-    """Render a Jinja template of the app to PDF bytes (call inside a request or app context)."""
-    html = render_template(template, **ctx)
-    return html_to_pdf(html, current_app.static_folder)
+def render_pdf(template: str, stylesheets: tuple[str, ...] = (), **ctx) -> bytes:
+    """Render a Jinja template of the app to PDF bytes (call inside a request or app context).
+
+    The template sees ``for_pdf=True`` so it can leave out the links to ``stylesheets``.
+    """
+    html = render_template(template, for_pdf=True, **ctx)
+    return html_to_pdf(html, current_app.static_folder, stylesheets)
 
 
 class PdfCache:

@@ -24,10 +24,10 @@ EXAMPLE_DAY = date(2026, 3, 2)
 
 def sheet_pdfs(languages=LANGUAGES, size: str = "a4") -> dict[str, bytes]:
     """{lang: PDF bytes} of the example child's sheet, rendered by the app's own code."""
-    from clinic_app import caregiver_sheet, create_app, pdf
+    from clinic_app import caregiver_sheet, create_app
     from clinic_app.clinical.assess import assess
     from clinic_app.clinical.types import ClinicSettings
-    from clinic_app.web.sheets import _render
+    from clinic_app.web.sheets import sheet_pdf
 
     settings = ClinicSettings(referral_facility_name="Mbeza District Hospital",
                               referral_facility_phone="+000 555 0100")
@@ -42,7 +42,7 @@ def sheet_pdfs(languages=LANGUAGES, size: str = "a4") -> dict[str, bytes]:
                 sheet = caregiver_sheet.build(result, age_months=EXAMPLE_INPUT["age_months"],
                                               settings=settings, locale=lang,
                                               seen_on=EXAMPLE_DAY, clinic=clinic)
-                out[lang] = pdf.html_to_pdf(_render(sheet, lang, size), app.static_folder)
+                out[lang] = sheet_pdf(sheet, lang, size)
     return out
 
 

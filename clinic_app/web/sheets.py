@@ -35,6 +35,7 @@ from clinic_app.web import public
 bp = Blueprint("sheets", __name__)
 
 TEMPLATE = "sheets/sheet.html"
+STYLESHEETS = ("css/sheet.css",)
 
 
 def language_choices(selected: str) -> list[dict]:
@@ -87,6 +88,13 @@ def _render(sheet: dict, lang: str, size: str, *, toolbar: dict | None = None) -
                                size=size, toolbar_html=toolbar_html)
 
 
+def sheet_pdf(sheet: dict, lang: str, size: str) -> bytes:
+    """The sheet as PDF bytes, in the caregiver's language (call inside a request context)."""
+    with force_locale(lang):
+        return pdf.render_pdf(TEMPLATE, stylesheets=STYLESHEETS, s=sheet, lang=lang,
+                              dir=text_direction(lang), size=size, toolbar_html=None)
+
+
 def _ui_locale() -> str:
     locales = available_locales()
     if session.get("lang") in locales:
@@ -135,8 +143,7 @@ def case_pdf(case_id: str):
     settings_version = caregiver_sheet.settings_version(settings_store.load(conn), _clinic(conn))
     key = (case_id, case["payload_hash"], lang, size, settings_version)
     data, _hit = pdf.cache.get_or_render(
-        key, lambda: pdf.html_to_pdf(_render(_case_sheet(case, lang, conn), lang, size),
-                                     current_app.static_folder))
+        key, lambda: sheet_pdf(_case_sheet(case, lang, conn), lang, size))
     _audit(conn, "sheet_print", case_id)
     return _pdf_response(data, f"sheet-{lang}-{size}")
 
@@ -195,8 +202,7 @@ def quick():
                                errors=error.fields, values=request.form), 422
     sheet = _build(result, float(inputs["age_months"]), lang, clock.now().date(), conn)
     if options.get("format") == "pdf":
-        return _pdf_response(pdf.html_to_pdf(_render(sheet, lang, size),
-                                             current_app.static_folder),
+        return _pdf_response(sheet_pdf(sheet, lang, size),
                              f"quick-sheet-{lang}-{size}")
     return _render(sheet, lang, size)
 

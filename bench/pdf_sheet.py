@@ -1,0 +1,111 @@
+"""Bench: the caregiver sheet PDF against WeasyPrint's floor, and the cached repeat (issue 5).
+
+In one run, on a throw-away database with one invented case:
+
+- value: median wall time of ``GET /cases/<id>/sheet.pdf`` with the PDF cache emptied before
+  each request (login, case lookup, sheet build, template, WeasyPrint, audit entry);
+- baseline: median time of plain WeasyPrint rendering a one-page HTML that loads the same six
+  bundled fonts through the same local fetcher (a paragraph in each script);
+- cached: median time of the same request repeated for the unchanged case (served from the cache).
+
+Targets: value / baseline <= 1.5; cached / baseline <= 0.05.
+Not part of the test run: ``.venv/bin/python bench/pdf_sheet.py [--runs N] [--lang xx]``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import statistics
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+import weasyprint
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+from clinic_app import create_app, pdf  # noqa: E402
+from clinic_app.cli import add_user  # noqa: E402
+from clinic_app.storage import db  # noqa: E402
+from tests.web.followup_helpers import seed_case  # noqa: E402
+
+TARGET_RATIO = 1.5
+TARGET_CACHED_RATIO = 0.05
+PASSWORD = "correct-horse-1"
+
+PLAIN = """<!doctype html><html lang="en"><head><meta charset="utf-8"><style>
+@font-face { font-family: "B Sans"; src: url("/static/fonts/NotoSans-Regular.ttf"); }
+@font-face { font-family: "B Sans"; font-weight: 700; src: url("/static/fonts/NotoSans-Bold.ttf"); }
+@font-face { font-family: "B Deva"; src: url("/static/fonts/NotoSansDevanagari-Regular.ttf"); }
+@font-face { font-family: "B Deva"; font-weight: 700; src: url("/static/fonts/NotoSansDevanagari-Bold.ttf"); }
+@font-face { font-family: "B Arab"; src: url("/static/fonts/NotoSansArabic-Regular.ttf"); }
+@font-face { font-family: "B Arab"; font-weight: 700; src: url("/static/fonts/NotoSansArabic-Bold.ttf"); }
+@page { size: A4; } body { font-family: "B Sans", "B Deva", "B Arab"; }
+</style></head><body><h1>Plain page</h1>
+<p>One sachet in one litre of clean water. Give 1,200 ml over 4 hours.</p>
+<p><b>एक पैकेट एक लीटर साफ़ पानी में डालें।</b></p>
+<p dir="rtl"><b>ضع كيسًا واحدًا في لتر من الماء النظيف.</b></p>
+</body></html>"""
+
+
+def median_seconds(action, runs: int) -> float:
+    times = []
+    for _ in range(runs):
+        start = time.perf_counter()
+        action()
+        times.append(time.perf_counter() - start)
+    return statistics.median(times)
+
+
+def main() -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--runs", type=int, default=7)
+    parser.add_argument("--lang", default="en")
+    args = parser.parse_args()
+    with tempfile.TemporaryDirectory() as tmp:
+        app = create_app({"DATABASE": str(Path(tmp) / "bench.sqlite3"), "SECRET_KEY": "bench",
+                          "ARGON2_TIME_COST": 1, "ARGON2_MEMORY_COST": 8,
+                          "ARGON2_PARALLELISM": 1})
+        with app.app_context():
+            conn = db.connect(app.config["DATABASE"])
+            db.migrate(conn)
+            user_id = add_user(conn, "nurse", "nurse", PASSWORD)
+            conn.close()
+        case_id = seed_case(app, user_id)
+        client = app.test_client()
+        assert client.post("/api/v1/login", json={"username": "nurse",
+                                                  "password": PASSWORD}).status_code == 200
+        url = f"/cases/{case_id}/sheet.pdf?lang={args.lang}&size=a4"
+
+        def fresh():
+            pdf.cache.clear()
+            response = client.get(url)
+            assert response.status_code == 200 and response.data.startswith(b"%PDF")
+
+        def repeat():
+            assert client.get(url).status_code == 200
+
+        def plain():
+            # Plain WeasyPrint: a fresh document, fonts loaded from its own @font-face rules.
+            document = weasyprint.HTML(string=PLAIN, base_url=pdf.BASE_URL,
+                                       url_fetcher=pdf.local_fetcher(app.static_folder))
+            assert document.write_pdf().startswith(b"%PDF")
+
+        plain()  # warm-up: imports WeasyPrint and its dependencies once
+        fresh()
+        baseline = median_seconds(plain, args.runs)
+        value = median_seconds(fresh, args.runs)
+        fresh()
+        cached = median_seconds(repeat, args.runs * 3)
+    ratio, cached_ratio = value / baseline, cached / baseline
+    print(f"sheet PDF ({args.lang}, A4), median of {args.runs} runs")
+    print(f"value    {value * 1000:8.1f} ms  (uncached sheet)")
+    print(f"baseline {baseline * 1000:8.1f} ms  (plain one-page HTML, same fonts)")
+    print(f"ratio    {ratio:8.2f}     target <= {TARGET_RATIO}")
+    print(f"cached   {cached * 1000:8.1f} ms  ratio {cached_ratio:.3f}  target <= "
+          f"{TARGET_CACHED_RATIO}")
+    return 0 if ratio <= TARGET_RATIO and cached_ratio <= TARGET_CACHED_RATIO else 1
+
+
+if __name__ == "__main__":
+    sys.exit(main())
