@@ -140,14 +140,17 @@ def build_case(raw: dict, *, user_id: int, device_id: str | None, user_active: b
         quarantined=not user_active)
 
 
-def store_case(conn, case: cases.NewCase, raw: dict) -> str:
-    """Upsert one case with its audit entry in one transaction; return its status."""
-    with write(conn):
-        status = cases.upsert(conn, case, raw)
-        if status != "duplicate":
-            action = {"created": "case.create", "conflict": "case.conflict"}[status]
-            audit.record(conn, at=case.received_at, user_id=case.user_id, action=action,
-                         record_type="case", record_id=case.id, device_id=case.device_id)
+def store_case(conn, case: cases.NewCase, raw: dict, *, in_transaction: bool = False) -> str:
+    """Upsert one case with its audit entry in one transaction (its own, or the caller's when
+    ``in_transaction``); return its status."""
+    if not in_transaction:
+        with write(conn):
+            return store_case(conn, case, raw, in_transaction=True)
+    status = cases.upsert(conn, case, raw)
+    if status != "duplicate":
+        action = {"created": "case.create", "conflict": "case.conflict"}[status]
+        audit.record(conn, at=case.received_at, user_id=case.user_id, action=action,
+                     record_type="case", record_id=case.id, device_id=case.device_id)
     return status
 
 
@@ -166,7 +169,8 @@ def upload_cases():
     conn = get_db()
     settings = settings_store.load(conn)
     received_at = clock.iso(clock.now())
-    results = []
+    results: list = []
+    ready = []
     for raw in batch:
         raw_id = raw.get("id") if isinstance(raw, dict) else None
         try:
@@ -178,8 +182,14 @@ def upload_cases():
         except CaseRejected as exc:
             results.append({"id": raw_id, "status": "rejected", "error": str(exc)})
             continue
-        results.append({"id": case.id, "status": store_case(conn, case, raw), "error": None})
+        ready.append((len(results), case, raw))
+        results.append(None)
+    # One transaction for the whole batch (computed above, outside the write lock): a full or
+    # read-only disk stores none of it, and the phone's retry sends it whole again.
     with write(conn):
+        for index, case, raw in ready:
+            results[index] = {"id": case.id, "error": None,
+                              "status": store_case(conn, case, raw, in_transaction=True)}
         devices.touch(conn, device["id"], received_at)
     return jsonify({"results": results})
 

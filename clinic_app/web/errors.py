@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import os
+import sqlite3
+
 from flask import render_template, request
 from flask_wtf.csrf import CSRFError
 from werkzeug.exceptions import HTTPException, InternalServerError
@@ -52,7 +55,32 @@ def handle_unexpected(exc: Exception):
     return _respond(500, str(TITLES[500]))
 
 
+def handle_storage(exc: sqlite3.OperationalError):
+    """A full, read-only or locked database: 503 with a plain reason, not a generic 500."""
+    from flask import current_app
+
+    text = str(exc).lower()
+    path = current_app.config.get("DATABASE") or ""
+    if "full" in text:
+        code = "storage_full"
+        message = _("The clinic computer's disk is full. Nothing was saved. Tell the "
+                    "administrator; records waiting on phones are kept and sent again.")
+    elif "readonly" in text or "read-only" in text or (path and os.path.exists(path)
+                                                       and not os.access(path, os.W_OK)):
+        code = "storage_read_only"
+        message = _("The clinic database is read-only. Nothing was saved. Tell the "
+                    "administrator; records waiting on phones are kept and sent again.")
+    elif "locked" in text or "busy" in text:
+        code = "storage_busy"
+        message = _("The clinic database is busy. Nothing was saved. Try again in a moment.")
+    else:
+        return handle_unexpected(exc)
+    current_app.logger.error("Storage error on %s %s: %s", request.method, request.path, exc)
+    return _respond(503, message, code)
+
+
 def init_app(app) -> None:
+    app.register_error_handler(sqlite3.OperationalError, handle_storage)
     app.register_error_handler(CSRFError, handle_csrf)
     app.register_error_handler(HTTPException, handle_http)
     app.register_error_handler(InternalServerError, handle_http)
