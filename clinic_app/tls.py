@@ -277,7 +277,10 @@ def init_ca_and_server(
     return paths
 
 
-def _permits(constraints: x509.NameConstraints, ips: Sequence[IpAddress], names: Sequence[str]):
+def _outside_constraints(
+    constraints: x509.NameConstraints, ips: Sequence[IpAddress], names: Sequence[str]
+) -> list[str]:
+    """The addresses and names the CA's permitted subtrees do not cover."""
     permitted = constraints.permitted_subtrees or []
     nets = [g.value for g in permitted if isinstance(g, x509.IPAddress)]
     dns = [g.value for g in permitted if isinstance(g, x509.DNSName)]
@@ -323,7 +326,7 @@ def renew_server(
     else:
         ip_list, name_list = parse_ips(ips), _clean_names(names)
     constraints = ca_cert.extensions.get_extension_for_class(x509.NameConstraints).value
-    outside = _permits(constraints, ip_list, name_list)
+    outside = _outside_constraints(constraints, ip_list, name_list)
     if outside:
         raise TLSError(
             "The clinic's CA does not cover " + ", ".join(outside) + ". Phones would refuse it; "
