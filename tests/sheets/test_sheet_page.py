@@ -130,3 +130,16 @@ def test_the_interface_language_is_kept_in_the_session_apart_from_the_sheets(cli
     assert "Fiche rapide pour la famille" in page
     sheet = quick_sheet(client, token, "sw").get_data(as_text=True)
     assert "Changanya ORS" in sheet
+
+
+def test_every_page_offers_the_interface_language_with_the_draft_notice(client):
+    page = client.get("/login").get_data(as_text=True)
+    assert 'action="/language"' in page
+    assert '<option value="sw" lang="sw">Kiswahili — ' in page
+    assert "draft translation, to be reviewed by a native-speaking health worker" in page
+    assert client.post("/language", data={"lang": "sw"}).status_code == 400  # no CSRF token
+    token = re.search(r'name="csrf_token" value="([^"]+)"', page).group(1)
+    response = client.post("/language", data={"lang": "sw", "next": "/login",
+                                              "csrf_token": token})
+    assert response.status_code == 302 and response.headers["Location"].endswith("/login")
+    assert "Ingia" in client.get("/login").get_data(as_text=True)
