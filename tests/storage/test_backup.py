@@ -113,6 +113,48 @@ def test_a_backup_under_concurrent_writes_restores_every_acknowledged_record(tmp
     assert len(ids) < len(acknowledged)
 
 
+WRITER = """
+import sqlite3, sys
+conn = sqlite3.connect(sys.argv[1], isolation_level=None, timeout=10)
+acks = open(sys.argv[2], "a", buffering=1)
+for record_id in range(1, 1_000_000):
+    conn.execute("BEGIN IMMEDIATE")
+    conn.execute("INSERT INTO records VALUES (?, ?)", (record_id, "z" * 300))
+    conn.execute("INSERT INTO record_log VALUES (?)", (record_id,))
+    conn.execute("COMMIT")
+    acks.write(f"{record_id}\\n")  # acknowledged only once COMMIT returned
+"""
+
+
+def test_a_backup_while_another_process_writes_holds_every_acknowledged_record(tmp_path):
+    import subprocess
+    import sys
+
+    db = _clinic_db(tmp_path / "clinic.sqlite3")
+    acks = tmp_path / "acks.txt"
+    acks.touch()
+    writer = subprocess.Popen([sys.executable, "-c", WRITER, str(db), str(acks)])
+
+    def acknowledged():
+        return [int(line) for line in acks.read_text().splitlines() if line.strip()]
+
+    try:
+        _wait_for(lambda: len(acknowledged()) >= 300)
+        before = acknowledged()
+        backup(db, tmp_path / "backup.sqlite3")
+        _wait_for(lambda: len(acknowledged()) >= len(before) + 300)
+    finally:
+        writer.kill()
+        writer.wait()
+    restored = tmp_path / "restored.sqlite3"
+    restore(tmp_path / "backup.sqlite3", restored)
+    ids = _ids(restored)
+    assert _integrity(restored) == [("ok",)]
+    assert set(before) <= set(ids)
+    assert ids == list(range(1, len(ids) + 1))
+    assert len(ids) < len(acknowledged())
+
+
 def test_a_backup_can_be_taken_from_an_open_connection(tmp_path):
     db = _clinic_db(tmp_path / "clinic.sqlite3", rows=5)
     conn = sqlite3.connect(db, isolation_level=None)
