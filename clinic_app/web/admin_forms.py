@@ -5,7 +5,6 @@ from __future__ import annotations
 from flask_wtf import FlaskForm
 from wtforms import (
     BooleanField,
-    IntegerField,
     SelectField,
     SelectMultipleField,
     StringField,
@@ -24,6 +23,7 @@ from wtforms.validators import (
 from clinic_app.clinical.rulebook import RULES
 from clinic_app.i18n import lazy_gettext
 from clinic_app.storage import users
+from clinic_app.web.fields import IntegerField
 
 
 def plan_b_choices() -> list[tuple[str, str]]:

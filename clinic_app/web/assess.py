@@ -13,7 +13,6 @@ from wtforms import (
     BooleanField,
     FloatField,
     HiddenField,
-    IntegerField,
     RadioField,
     SelectField,
     StringField,
@@ -27,6 +26,7 @@ from clinic_app.i18n import _, lazy_gettext
 from clinic_app.storage import settings as settings_store
 from clinic_app.storage.db import get_db
 from clinic_app.web.assess_view import build_input, present, words
+from clinic_app.web.fields import IntegerField
 
 bp = Blueprint("assess", __name__)
 

@@ -15,7 +15,6 @@ from wtforms import (
     BooleanField,
     DateField,
     DecimalField,
-    IntegerField,
     RadioField,
     SelectField,
     StringField,
@@ -32,6 +31,7 @@ from clinic_app.storage import settings as settings_store
 from clinic_app.storage.db import get_db, write
 from clinic_app.web import fluid_chart
 from clinic_app.web import followup_records as records
+from clinic_app.web.fields import IntegerField
 
 bp = Blueprint("cases", __name__, url_prefix="/cases")
 

@@ -23,7 +23,7 @@ from flask import (
     url_for,
 )
 from flask_wtf import FlaskForm
-from wtforms import IntegerField, SelectField, StringField, TextAreaField
+from wtforms import SelectField, StringField, TextAreaField
 from wtforms.fields.choices import SelectChoice
 from wtforms.validators import DataRequired, Length, NumberRange
 
@@ -38,6 +38,7 @@ from clinic_app.surveillance.isoweek import week_of
 from clinic_app.web.api import ApiError
 from clinic_app.web.api_tallies import parse_filter, parse_weeks
 from clinic_app.web.auth import roles_required
+from clinic_app.web.fields import IntegerField
 from clinic_app.web.svg_charts import line_chart
 
 bp = Blueprint("supervisor", __name__, url_prefix="/supervisor")

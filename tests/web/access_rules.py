@@ -39,6 +39,7 @@ RULES: dict[str, Rule] = {
     "auth.login": Rule(public=True, csrf="token"),
     "auth.logout": Rule(public=True, ends_on_login_page=True),
     "home.index": Rule(),
+    "account.password": Rule(scope="the user's own password only"),
     "api.ping": Rule(public=True),
     "api.login": Rule(public=True, csrf="login"),
     "api.logout": Rule(),
@@ -106,5 +107,4 @@ RULES: dict[str, Rule] = {
     "admin.devices_page": Rule(roles=ADMIN),
     "admin.revoke_device": Rule(roles=ADMIN),
     "admin.settings_page": Rule(roles=ADMIN),
-    "account.password": Rule(),  # every user: replace a one-time password
 }
