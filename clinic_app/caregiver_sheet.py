@@ -83,7 +83,7 @@ def spoons(volume_ml: float) -> int:
 
 
 def _amount(volume_ml: float, settings: ClinicSettings, locale: str, with_spoons: bool) -> dict:
-    return {"ml": ml(volume_ml, locale), "ml_number": number(volume_ml, locale),
+    return {"ml": ml(volume_ml, locale),
             "cups": number(cups(volume_ml, settings.cup_ml), locale),
             "cup_fills": cup_pictures(volume_ml, settings.cup_ml),
             "spoons": number(spoons(volume_ml), locale) if with_spoons else None}

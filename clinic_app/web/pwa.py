@@ -22,15 +22,18 @@ bp = Blueprint("pwa", __name__)
 # script or engine module is precached without anyone editing this list).
 SHELL_FILES = ("css/app.css", "css/phone.css", "icons/icon.svg", "icons/icon-192.png", "icons/icon-512.png",
                "icons/maskable-512.png")
+# The offline caregiver sheet (issue 5): its styles, pictograms and JSON catalogs.
+SHEET_GLOBS = ("css/sheet*.css", "icons/sheet/*.svg", "i18n/*.json")
 # Pages the worker keeps for offline use (no patient data in them: a blank form and a menu).
-OFFLINE_PAGES = ("/", "/assess")
+OFFLINE_PAGES = ("/", "/assess", "/sheet/offline")
 
 
 def shell_assets(static_folder: str) -> dict[str, str]:
     """{static path: sha256} of the precached app shell, sorted by path."""
     root = Path(static_folder)
     paths = sorted({*SHELL_FILES, *(p.relative_to(root).as_posix()
-                                    for p in root.glob("js/**/*.js"))})
+                                    for pattern in ("js/**/*.js", *SHEET_GLOBS)
+                                    for p in root.glob(pattern))})
     return {path: hashlib.sha256((root / path).read_bytes()).hexdigest()
             for path in paths if (root / path).is_file()}
 

@@ -161,6 +161,14 @@ def case_sheet(case_id: str):
     return _render(_case_sheet(case, lang, conn), lang, size, toolbar=toolbar)
 
 
+@bp.get("/sheet/offline")
+def offline():
+    """The page that draws a case's sheet on the phone from the copy kept there."""
+    conn = db.get_db()
+    return render_template("sheets/offline.html", clinic=_clinic(conn),
+                           languages=language_choices(_ui_locale()))
+
+
 def _quick_input() -> dict:
     """The assessment input of the quick sheet: a JSON body or the small form's fields."""
     if request.is_json:

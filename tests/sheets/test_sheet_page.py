@@ -143,3 +143,11 @@ def test_every_page_offers_the_interface_language_with_the_draft_notice(client):
                                               "csrf_token": token})
     assert response.status_code == 302 and response.headers["Location"].endswith("/login")
     assert "Ingia" in client.get("/login").get_data(as_text=True)
+
+
+def test_the_offline_sheet_page_carries_what_the_phone_needs_to_draw_it(client, as_user):
+    as_user("chw")
+    page = client.get("/sheet/offline").get_data(as_text=True)
+    assert 'id="sheet-root" data-username="chw"' in page
+    assert 'data-rulebook-url="/api/v1/rulebook"' in page
+    assert "js/pages/sheet_offline.js" in page and "css/sheet.css" in page

@@ -138,7 +138,9 @@ async function saveHere() {
   await ctx.outbox.add({ kind: "case", id, owner: username, payload });
   await ctx.outbox.remember(username, { id, created_at: payload.created_at,
     severity_text: words[`severity_${state.result.severity}`], plan: state.result.plan,
-    household_ref: payload.household_ref });
+    household_ref: payload.household_ref,
+    // Kept for the offline caregiver sheet (/sheet/offline#<id>).
+    input: state.input, result: state.result, caregiver_language: payload.caregiver_language });
   await ctx.refresh();
   form.reset();
   resultArea.replaceChildren();
