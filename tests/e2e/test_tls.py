@@ -103,7 +103,7 @@ def _log_in(page, base_url):
     page.goto(base_url + "/login")
     page.fill("#username", username)
     page.fill("#password", password)
-    page.click("button[type=submit]")
+    page.click("main button[type=submit]")  # the header has a language form too
     page.wait_for_url(base_url + "/")
 
 
