@@ -82,7 +82,8 @@ def score_item_errors(inputs: dict) -> dict[str, str]:
         for item, finding in items.items():
             if item not in points:
                 errors[f"{key}.{item}"] = _text("unknown_item", name=name)
-            elif finding is not None and finding not in points[item]:
+            elif finding is not None and (not isinstance(finding, str)
+                                          or finding not in points[item]):
                 errors[f"{key}.{item}"] = _text("invalid_item", choices=", ".join(points[item]))
     return errors
 

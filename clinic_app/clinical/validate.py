@@ -26,8 +26,12 @@ def _message(key: str, spec: dict, **params) -> str:
 
 
 def _is_number(value: object) -> bool:
-    return (isinstance(value, int | float) and not isinstance(value, bool)
-            and math.isfinite(value))
+    if not isinstance(value, int | float) or isinstance(value, bool):
+        return False
+    try:
+        return math.isfinite(value)
+    except OverflowError:   # an integer beyond float range (JavaScript reads it as Infinity)
+        return False
 
 
 def _type_error(spec: dict, value: object) -> str | None:

@@ -320,10 +320,6 @@ ODD_VALUES = [
 ]
 
 
-@pytest.mark.xfail(strict=True, raises=(TypeError, OverflowError),
-                   reason="the core raises TypeError for a list or object as a score finding and "
-                          "OverflowError for an integer beyond float range; the engine answers "
-                          "422 for both (reported to the core)")
 @pytest.mark.parametrize("extra", ODD_VALUES, ids=["list-finding", "object-finding",
                                                    "huge-muac", "huge-age", "huge-negative-days"])
 def test_both_engines_answer_422_for_values_json_allows_but_the_contract_does_not(tmp_path, extra):
