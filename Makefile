@@ -58,7 +58,7 @@ translations-update: translations-extract ## Merge new strings into every catalo
 	$(PY) -m clinic_app.i18n_export update
 
 screenshots: setup ## PNGs of the A4 caregiver sheet in English, Swahili, Hindi and Arabic
-	@mkdir -p screenshots
+	@mkdir -p screenshots && rm -f screenshots/sheet-a4-*
 	$(PY) -m clinic_app.sheet_screenshots screenshots
 
 run: setup ## Serve the app on http://127.0.0.1:8000 with the demo clinic

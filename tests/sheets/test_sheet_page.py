@@ -151,3 +151,10 @@ def test_the_offline_sheet_page_carries_what_the_phone_needs_to_draw_it(client, 
     assert 'id="sheet-root" data-username="chw"' in page
     assert 'data-rulebook-url="/api/v1/rulebook"' in page
     assert "js/pages/sheet_offline.js" in page and "css/sheet.css" in page
+
+
+def test_the_case_page_links_to_its_caregiver_sheet(app, client, users, as_user):
+    case_id = seed_case(app, users["chw"])
+    as_user("chw")
+    page = client.get(f"/cases/{case_id}").get_data(as_text=True)
+    assert f'href="/cases/{case_id}/sheet"' in page
