@@ -77,5 +77,8 @@ test-js: ## Run the JavaScript engine tests with node --test
 	@if ls tests/js/*.test.mjs >/dev/null 2>&1; then node --test tests/js/; \
 	else echo "no JavaScript tests yet"; fi
 
+bench: setup test-packages ## Run every bench/*.py and print one table: measure, value, baseline, ratio, target, met
+	$(PY) bench/run_all.py
+
 lint: $(STAMP) ## Ruff over the whole tree
 	$(VENV)/bin/ruff check clinic_app tests $(wildcard bench)
