@@ -153,10 +153,11 @@ def plan_b_reassessments(
     if not _has_table(conn, "reassessments"):
         return None
     extra, params = (where or TallyFilter()).case_where()
-    # Reassessments are few next to cases, so walk them and look each case up by id.
+    # Reassessments are few next to cases, so walk them and look each case up by id
+    # (CROSS JOIN keeps SQLite from scanning every case of the period instead).
     return conn.execute(
         "SELECT cases.id, cases.created_at, reassessments.assessed_at"
-        " FROM reassessments JOIN cases ON cases.id = reassessments.case_id"
+        " FROM reassessments CROSS JOIN cases ON cases.id = reassessments.case_id"
         " WHERE cases.status = 'active' AND cases.plan = 'B'"
         f" AND cases.created_at >= :lo AND cases.created_at < :hi{extra}",
         {"lo": lo, "hi": hi, **params},
@@ -174,7 +175,7 @@ def follow_up_visits(
     extra, params = (where or TallyFilter()).case_where()
     return conn.execute(
         "SELECT followup_visits.due_date, followup_visits.status, followup_visits.done_at"
-        " FROM followup_visits JOIN cases ON cases.id = followup_visits.case_id"
+        " FROM followup_visits CROSS JOIN cases ON cases.id = followup_visits.case_id"
         " WHERE cases.status = 'active' AND followup_visits.status != 'cancelled'"
         f" AND followup_visits.due_date >= :lo AND followup_visits.due_date < :hi{extra}",
         {"lo": lo, "hi": hi, **params},
