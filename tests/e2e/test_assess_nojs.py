@@ -20,7 +20,7 @@ def test_without_javascript_the_server_assesses_and_saves_the_case(live_server, 
         page.goto(live_server.url + "/login")
         page.fill("#username", username)
         page.fill("#password", password)
-        page.click("button[type=submit]")
+        page.click("main button[type=submit]")
         page.goto(live_server.url + "/assess")
         page.fill("#age_value", "18")
         page.fill("#weight_kg", "10")

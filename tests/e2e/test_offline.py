@@ -76,7 +76,7 @@ def log_in(page, url):
     page.goto(url + "/login")
     page.fill("#username", USERNAME)
     page.fill("#password", PASSWORD)
-    page.click("button[type=submit]")
+    page.click("main button[type=submit]")
     page.wait_for_url(url + "/")
 
 
