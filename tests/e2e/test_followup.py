@@ -29,6 +29,8 @@ PER_STOOL_18_MONTHS = "After each loose stool: 50-100 ml"
 
 DEVICE_TOKEN = """() => new Promise((resolve) => {
   const open = indexedDB.open("clinic-outbox");
+  // Never create the database here: the app's outbox must create it with its stores.
+  open.onupgradeneeded = () => open.transaction.abort();
   open.onsuccess = () => {
     const tx = open.result.transaction(["devices"], "readonly");
     const all = tx.objectStore("devices").getAll();
@@ -65,9 +67,12 @@ def log_in_and_register(page, url) -> str:
     page.goto(url + "/login")
     page.fill("#username", USERNAME)
     page.fill("#password", PASSWORD)
-    page.click("button[type=submit]")
+    page.press("#password", "Enter")  # every page also has a language form with its own button
     page.wait_for_url(url + "/")
-    poll(page, "() => (" + DEVICE_TOKEN + ")().then(t => t !== null)")
+    try:
+        poll(page, "() => (" + DEVICE_TOKEN + ")().then(t => t !== null)", timeout=30)
+    except AssertionError:
+        raise AssertionError(f"no device token; console: {page.console_errors}") from None
     return page.evaluate(DEVICE_TOKEN)
 
 
@@ -147,3 +152,54 @@ def test_the_reassessment_works_with_the_server_stopped_and_syncs_once(live_serv
                                  [waiting[0]["payload"]]])
     assert again == ["duplicate"]
     assert len(reassessments(live_server)) == 1
+
+
+def test_monitoring_and_the_outcome_are_recorded_offline_and_sync_once(live_server, page):
+    url = live_server.url
+    token = log_in_and_register(page, url)
+    case_id = upload_plan_b_case(page, token)
+    page.goto(f"{url}/cases/{case_id}/monitor")
+    page.wait_for_load_state("networkidle")
+
+    live_server.stop()  # out of range
+    page.select_option("#what", "ors")
+    page.fill("#cups", "2")
+    page.click("#monitor-form button[type=submit]")
+    page.wait_for_selector("#queue-note:not([hidden])")
+    page.select_option("#what", "stool")
+    page.click("#monitor-form button[type=submit]")
+    poll(page, "() => document.querySelector('[data-outbox-count]').textContent"
+               ".includes('2 waiting')")
+
+    live_server.start()  # back in range
+    page.click("[data-outbox-send]")
+    poll(page, "() => document.querySelector('[data-outbox-count]').textContent"
+               ".includes('Nothing')", timeout=20)
+    page.reload()
+    assert page.inner_text("#given") == "400 ml"
+    # 10 kg Plan B: 750 ml (S04) + one stool under 2 years 50-100 ml (S03) = 800-850 ml;
+    # given 2 cups x 200 ml = 400 ml; remaining 400-450 ml.
+    assert page.inner_text("#target") == "800–850 ml"
+    assert page.inner_text("#remaining") == "400–450 ml"
+
+    page.goto(f"{url}/cases/{case_id}/outcome")
+    page.wait_for_load_state("networkidle")
+    live_server.stop()
+    page.check("input[name=outcome][value=referred]")
+    page.fill("#referred_to", "Kantolo District Hospital")
+    page.fill("#transport", "bicycle ambulance")
+    page.click("#outcome-form button[type=submit]")
+    page.wait_for_selector("#queue-note:not([hidden])")
+    live_server.start()
+    page.click("[data-outbox-send]")
+    poll(page, "() => document.querySelector('[data-outbox-count]').textContent"
+               ".includes('Nothing')", timeout=20)
+    conn = db.connect(str(live_server.workdir / "clinic.sqlite3"))
+    try:
+        assert conn.execute("SELECT COUNT(*) FROM monitoring_entries").fetchone()[0] == 2
+        assert conn.execute("SELECT outcome FROM cases WHERE id = ?",
+                            (case_id,)).fetchone()[0] == "referred"
+        row = conn.execute("SELECT referred_to, transport FROM outcomes").fetchone()
+        assert tuple(row) == ("Kantolo District Hospital", "bicycle ambulance")
+    finally:
+        conn.close()
