@@ -67,7 +67,8 @@ _CORE: dict = {
                               "note": "Plan B: a teaspoonful every 1-2 minutes under 2 years."},
     "input_fields": {
         "source": "PRACTICE",
-        "note": "Ranges of the issue 3 contract; muac_mm and sodium_mmol_l ranges are our own.",
+        "note": ("Ranges of the issue 3 contract; the muac_mm, sodium_mmol_l and "
+                 "minutes_to_iv_facility (one week) limits are our own."),
         "fields": [
             {"name": "age_months", "label": "Age in months", "type": "number", "required": True,
              "min": 0, "max_exclusive": 1440},
@@ -109,7 +110,7 @@ _CORE: dict = {
                 {"name": "ng_trained", "label": "Trained in nasogastric rehydration",
                  "type": "boolean"},
                 {"name": "minutes_to_iv_facility", "label": "Minutes to the IV facility",
-                 "type": "integer", "min": 0},
+                 "type": "integer", "min": 0, "max": 10080},
                 {"name": "cholera_outbreak", "label": "Cholera outbreak declared",
                  "type": "boolean"},
                 {"name": "cholera_in_area", "label": "Cholera in the area", "type": "boolean"},

@@ -58,7 +58,7 @@ def errors_of(inputs) -> tuple[str, dict]:
     pytest.param(case(context={"iv_avail": True}), "context.iv_avail",
                  "This field is not part of the assessment input.", id="context-unknown-key"),
     pytest.param(case(context={"minutes_to_iv_facility": -5}), "context.minutes_to_iv_facility",
-                 "Minutes to the IV facility must be at least 0.", id="context-minutes-negative"),
+                 "Minutes to the IV facility must be from 0 to 10080.", id="context-minutes-negative"),
     pytest.param(case(context={"ng_trained": "yes"}), "context.ng_trained",
                  "Trained in nasogastric rehydration must be true or false.", id="context-boolean"),
     pytest.param(case(sodium_mmol_l=90), "sodium_mmol_l", "Sodium must be from 100 to 200 mmol/L.",
