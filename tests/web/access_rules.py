@@ -63,6 +63,7 @@ RULES: dict[str, Rule] = {
     "sheets.case_sheet": Rule(scope="cases the user may read (404 otherwise)"),
     "sheets.case_pdf": Rule(scope="cases the user may read (404 otherwise)"),
     "sheets.quick": Rule(),
+    "sheets.offline": Rule(scope="a page shell; the sheet data stays on the phone"),
     "sheets.choose_language": Rule(public=True),
     # After the first assessment (issue 6)
     "cases.index": Rule(scope="a CHW lists only their own cases"),
