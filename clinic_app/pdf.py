@@ -103,11 +103,13 @@ def _state(static_root: str) -> _Shared:
         return _shared[static_root]
 
 
-def html_to_pdf(html: str, static_root: str | Path, stylesheets: tuple[str, ...] = ()) -> bytes:
+def html_to_pdf(html: str, static_root: str | Path, stylesheets: tuple[str, ...] = (),
+                zoom: float = 1) -> bytes:
     """Turn an HTML string into PDF bytes, fetching only files under ``static_root``.
 
     ``stylesheets`` (paths under static/, e.g. "css/sheet.css") are parsed once per process
-    and applied to the page; the HTML should then not link them itself.
+    and applied to the page; the HTML should then not link them itself. ``zoom`` scales
+    pages and content together (an A4 layout at 1/sqrt(2) is an A5 page).
     """
     import weasyprint
 
@@ -116,16 +118,17 @@ def html_to_pdf(html: str, static_root: str | Path, stylesheets: tuple[str, ...]
         sheets = [state.stylesheet(name) for name in stylesheets]
         document = weasyprint.HTML(string=html, base_url=BASE_URL, url_fetcher=state.fetcher)
         return document.write_pdf(stylesheets=sheets, font_config=state.fonts,
-                                  cache=state.images)
+                                  cache=state.images, zoom=zoom)
 
 
-def render_pdf(template: str, stylesheets: tuple[str, ...] = (), **ctx) -> bytes:
+def render_pdf(template: str, stylesheets: tuple[str, ...] = (), zoom: float = 1,
+               **ctx) -> bytes:
     """Render a Jinja template of the app to PDF bytes (call inside a request or app context).
 
     The template sees ``for_pdf=True`` so it can leave out the links to ``stylesheets``.
     """
     html = render_template(template, for_pdf=True, **ctx)
-    return html_to_pdf(html, current_app.static_folder, stylesheets)
+    return html_to_pdf(html, current_app.static_folder, stylesheets, zoom)
 
 
 class PdfCache:

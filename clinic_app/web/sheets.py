@@ -90,9 +90,11 @@ def _render(sheet: dict, lang: str, size: str, *, toolbar: dict | None = None) -
 
 def sheet_pdf(sheet: dict, lang: str, size: str) -> bytes:
     """The sheet as PDF bytes, in the caregiver's language (call inside a request context)."""
+    # A5 is A4 scaled by 1/sqrt(2): the one-page A4 layout, zoomed, fills an A5 page exactly.
+    layout, zoom = ("a4", 2 ** -0.5) if size == "a5" else (size, 1)
     with force_locale(lang):
-        return pdf.render_pdf(TEMPLATE, stylesheets=STYLESHEETS, s=sheet, lang=lang,
-                              dir=text_direction(lang), size=size, toolbar_html=None)
+        return pdf.render_pdf(TEMPLATE, stylesheets=STYLESHEETS, zoom=zoom, s=sheet, lang=lang,
+                              dir=text_direction(lang), size=layout, toolbar_html=None)
 
 
 def _ui_locale() -> str:

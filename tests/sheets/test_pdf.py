@@ -48,6 +48,9 @@ def test_the_pdf_holds_the_volumes_in_the_locales_format_and_the_right_script(
         assert re.sub(r"\s", "", KEY_PHRASE[lang]) in letters
     assert len(re.findall(r"\d", text)) > 20
     fonts_path = tmp_path / "sheet.pdf"
+    info = subprocess.run(["pdfinfo", str(fonts_path)], capture_output=True, check=True,
+                          text=True).stdout
+    assert re.search(r"^Pages:\s+1$", info, re.M), "the A4 sheet must fit on one page"
     fonts = subprocess.run(["pdffonts", str(fonts_path)], capture_output=True, check=True,
                            text=True).stdout.splitlines()[2:]
     assert fonts and all(" yes " in row for row in fonts)  # every font embedded
@@ -58,7 +61,7 @@ def test_the_pdf_holds_the_volumes_in_the_locales_format_and_the_right_script(
 
 @needs_poppler
 def test_a_case_pdf_is_audited_and_a_repeat_comes_from_the_cache(app, client, users, as_user,
-                                                                 monkeypatch):
+                                                                 monkeypatch, tmp_path):
     pdf.cache.clear()
     case_id = seed_case(app, users["chw"])
     as_user("chw")
@@ -69,8 +72,13 @@ def test_a_case_pdf_is_audited_and_a_repeat_comes_from_the_cache(app, client, us
     second = client.get(f"/cases/{case_id}/sheet.pdf?lang=fr&size=letter")
     assert first.status_code == second.status_code == 200
     assert first.data == second.data and len(renders) == 1
-    client.get(f"/cases/{case_id}/sheet.pdf?lang=fr&size=a5")
+    a5 = client.get(f"/cases/{case_id}/sheet.pdf?lang=fr&size=a5")
     assert len(renders) == 2  # another size is another sheet
+    path = tmp_path / "a5.pdf"
+    path.write_bytes(a5.data)
+    info = subprocess.run(["pdfinfo", str(path)], capture_output=True, check=True,
+                          text=True).stdout
+    assert "(A5)" in info and re.search(r"^Pages:\s+1$", info, re.M)
     conn = db.connect(app.config["DATABASE"])
     prints = [r for r in audit.entries(conn) if r["action"] == "sheet_print"]
     conn.close()
