@@ -2,7 +2,7 @@
 // outbox (waiting to sync) or its kept copy of the worker's own cases, the cached rulebook and
 // the JSON catalog of the chosen language, then draws the sheet (static/js/sheet_offline.js).
 import { load, t } from '../i18n.js';
-import { openOutbox, Outbox } from '../outbox.js';
+import { openOutbox } from '../outbox.js';
 import { buildSheet, renderSheet } from '../sheet_offline.js';
 
 const root = document.getElementById('sheet-root');
@@ -27,7 +27,7 @@ async function draw(record, rulebook) {
 
 async function main() {
   const id = decodeURIComponent(location.hash.slice(1));
-  const outbox = new Outbox(await openOutbox());
+  const outbox = await openOutbox();
   const record = id ? await findCase(outbox, root.dataset.username, id) : null;
   if (!record) {
     status.textContent = root.dataset.notFound;
@@ -43,4 +43,6 @@ async function main() {
   await draw(record, rulebook);
 }
 
+// Another case chosen on the same page (only the #fragment changes): draw that one.
+window.addEventListener('hashchange', () => window.location.reload());
 main().catch(() => { status.textContent = root.dataset.notFound; });
