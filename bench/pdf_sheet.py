@@ -5,7 +5,8 @@ In one run, on a throw-away database with one invented case:
 - value: median wall time of ``GET /cases/<id>/sheet.pdf`` with the PDF cache emptied before
   each request (login, case lookup, sheet build, template, WeasyPrint, audit entry);
 - baseline: median time of plain WeasyPrint rendering a one-page HTML that loads the same six
-  bundled fonts through the same local fetcher (a paragraph in each script);
+  bundled fonts through the same local fetcher and holds the same words as the sheet, as plain
+  paragraphs (no pictograms, boxes or layout): what any PDF of this text costs;
 - cached: median time of the same request repeated for the unchanged case (served from the cache).
 
 Targets: value / baseline <= 1.5; cached / baseline <= 0.05.
@@ -15,6 +16,8 @@ Not part of the test run: ``.venv/bin/python bench/pdf_sheet.py [--runs N] [--la
 from __future__ import annotations
 
 import argparse
+import html
+import re
 import statistics
 import sys
 import tempfile
@@ -33,19 +36,26 @@ TARGET_RATIO = 1.5
 TARGET_CACHED_RATIO = 0.05
 PASSWORD = "correct-horse-1"
 
-PLAIN = """<!doctype html><html lang="en"><head><meta charset="utf-8"><style>
+FONT_FACES = """
 @font-face { font-family: "B Sans"; src: url("/static/fonts/NotoSans-Regular.ttf"); }
 @font-face { font-family: "B Sans"; font-weight: 700; src: url("/static/fonts/NotoSans-Bold.ttf"); }
 @font-face { font-family: "B Deva"; src: url("/static/fonts/NotoSansDevanagari-Regular.ttf"); }
 @font-face { font-family: "B Deva"; font-weight: 700; src: url("/static/fonts/NotoSansDevanagari-Bold.ttf"); }
 @font-face { font-family: "B Arab"; src: url("/static/fonts/NotoSansArabic-Regular.ttf"); }
 @font-face { font-family: "B Arab"; font-weight: 700; src: url("/static/fonts/NotoSansArabic-Bold.ttf"); }
-@page { size: A4; } body { font-family: "B Sans", "B Deva", "B Arab"; }
-</style></head><body><h1>Plain page</h1>
-<p>One sachet in one litre of clean water. Give 1,200 ml over 4 hours.</p>
-<p><b>एक पैकेट एक लीटर साफ़ पानी में डालें।</b></p>
-<p dir="rtl"><b>ضع كيسًا واحدًا في لتر من الماء النظيف.</b></p>
-</body></html>"""
+@page { size: A4; } body { font-family: "B Sans", "B Deva", "B Arab"; font-size: 10pt; }
+"""
+
+
+def plain_page(sheet_html: str, lang: str) -> str:
+    """The same words as the sheet, as plain paragraphs: no pictograms, boxes or layout."""
+    body = sheet_html.split("<body", 1)[1]
+    lines = [html.unescape(re.sub(r"<[^>]+>", " ", chunk)).strip()
+             for chunk in re.split(r"</(?:p|h1|h2|li)>", body)]
+    paragraphs = "".join(f"<p>{html.escape(' '.join(line.split()))}</p>" for line in lines if line)
+    direction = "rtl" if lang == "ar" else "ltr"
+    return (f'<!doctype html><html lang="{lang}" dir="{direction}"><head><meta charset="utf-8">'
+            f"<style>{FONT_FACES}</style></head><body>{paragraphs}</body></html>")
 
 
 def median_seconds(action, runs: int) -> float:
@@ -76,6 +86,8 @@ def main() -> int:
         assert client.post("/api/v1/login", json={"username": "nurse",
                                                   "password": PASSWORD}).status_code == 200
         url = f"/cases/{case_id}/sheet.pdf?lang={args.lang}&size=a4"
+        plain_html = plain_page(client.get(f"/cases/{case_id}/sheet?lang={args.lang}")
+                                .get_data(as_text=True), args.lang)
 
         def fresh():
             pdf.cache.clear()
@@ -87,7 +99,7 @@ def main() -> int:
 
         def plain():
             # Plain WeasyPrint: a fresh document, fonts loaded from its own @font-face rules.
-            document = weasyprint.HTML(string=PLAIN, base_url=pdf.BASE_URL,
+            document = weasyprint.HTML(string=plain_html, base_url=pdf.BASE_URL,
                                        url_fetcher=pdf.local_fetcher(app.static_folder))
             assert document.write_pdf().startswith(b"%PDF")
 
@@ -100,7 +112,7 @@ def main() -> int:
     ratio, cached_ratio = value / baseline, cached / baseline
     print(f"sheet PDF ({args.lang}, A4), median of {args.runs} runs")
     print(f"value    {value * 1000:8.1f} ms  (uncached sheet)")
-    print(f"baseline {baseline * 1000:8.1f} ms  (plain one-page HTML, same fonts)")
+    print(f"baseline {baseline * 1000:8.1f} ms  (plain one-page HTML: same words, same fonts)")
     print(f"ratio    {ratio:8.2f}     target <= {TARGET_RATIO}")
     print(f"cached   {cached * 1000:8.1f} ms  ratio {cached_ratio:.3f}  target <= "
           f"{TARGET_CACHED_RATIO}")
