@@ -32,7 +32,6 @@ DEFAULTS: dict[str, object] = {
     "ARGON2_PARALLELISM": 2,
     "DEFAULT_LOCALE": "en",
     "MAX_CONTENT_LENGTH": 8 * 1024 * 1024,
-    "LOW_STOCK_WEEKS": 4,  # supplies page: alert below this many weeks of stock
 }
 
 

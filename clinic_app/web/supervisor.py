@@ -14,7 +14,6 @@ from flask import (
     Blueprint,
     Response,
     abort,
-    current_app,
     flash,
     g,
     redirect,
@@ -30,7 +29,7 @@ from wtforms.validators import DataRequired, Length, NumberRange
 from clinic_app import clock, supervision
 from clinic_app.i18n import _, lazy_gettext
 from clinic_app.storage import alerts as alert_store
-from clinic_app.storage import audit, exports, tallies
+from clinic_app.storage import audit, exports, profile, tallies
 from clinic_app.storage import stock as stock_store
 from clinic_app.storage.db import get_db, write
 from clinic_app.surveillance.agegroups import AGE_GROUP_KEYS
@@ -144,10 +143,15 @@ def report_context(conn, first, last, where) -> dict:
     }  # fmt: skip
 
 
+def low_stock_weeks(conn) -> int:
+    """The admin's low-stock threshold, in weeks of stock left (clinic profile)."""
+    return profile.load(conn).stock_alert_weeks
+
+
 def refresh_alerts(conn) -> None:
     with write(conn):
         supervision.refresh_alerts(conn, today(), clock.iso(clock.now()),
-                                   current_app.config["LOW_STOCK_WEEKS"])  # fmt: skip
+                                   low_stock_weeks(conn))  # fmt: skip
 
 
 @bp.get("/")
@@ -213,7 +217,7 @@ def supplies():
                              record_type="stock_movement", record_id=str(movement))  # fmt: skip
             return redirect(url_for(".supplies")), 303
         flash(_("Enter a whole number; a receipt must be more than zero."), "error")
-    low_weeks = current_app.config["LOW_STOCK_WEEKS"]
+    low_weeks = low_stock_weeks(conn)
     return render_template(
         "supervisor/supplies.html", form=form, can_edit=can_edit, items=ITEM_LABELS,
         stock=supervision.stock_overview(conn, today(), low_weeks), low_weeks=low_weeks,

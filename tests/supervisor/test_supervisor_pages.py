@@ -196,3 +196,15 @@ def test_the_home_menu_leads_each_role_to_its_supervisor_pages(client, as_user):
     assert "/supervisor/supplies" in home and 'href="/supervisor/"' not in home
     as_user("supervisor")  # a new login replaces the nurse's session
     assert 'href="/supervisor/"' in client.get("/").get_data(as_text=True)
+
+
+def test_the_low_stock_threshold_is_the_one_the_admin_saved(app, client, as_user, fixed_clock):
+    from clinic_app.storage import profile
+
+    conn = db.connect(app.config["DATABASE"])
+    with db.write(conn):
+        profile.save(conn, profile.ClinicProfile(stock_alert_weeks=7), user_id=None,
+                     at="2027-01-20T09:00:00Z")
+    as_user("supervisor")
+    html = client.get("/supervisor/supplies").get_data(as_text=True)
+    assert "fewer than 7 weeks left" in html
