@@ -1,4 +1,4 @@
-"""The clinic's non-clinical settings: its name, the stock alert threshold, default languages.
+"""The clinic's non-clinical settings: its name and phone, the stock alert threshold, default languages.
 
 Versioned like the clinical settings (every save is a new row, the newest is in force), but kept
 apart from them: these do not change the rulebook, so a new clinic name does not make every
@@ -16,6 +16,7 @@ from dataclasses import dataclass
 @dataclass(frozen=True)
 class ClinicProfile:
     clinic_name: str = ""
+    clinic_phone: str = ""
     # Low-stock alert when ORS or zinc stock would last fewer weeks than this at recent use
     # (an operational choice of the clinic, not a clinical number).
     stock_alert_weeks: int = 4

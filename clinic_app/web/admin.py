@@ -114,6 +114,7 @@ def settings_page():
             name: _clean(form[name].data) for name in _CLINICAL_FIELDS if name in form})
         new_profile = profile.ClinicProfile(
             clinic_name=(form.clinic_name.data or "").strip(),
+            clinic_phone=(form.clinic_phone.data or "").strip(),
             stock_alert_weeks=form.stock_alert_weeks.data,
             default_languages=tuple(form.default_languages.data),
         )

@@ -44,6 +44,10 @@ def maintenance_choices() -> list[tuple[int, str]]:
 class SettingsForm(FlaskForm):
     # Non-clinical (clinic profile)
     clinic_name = StringField(lazy_gettext("Clinic name"), validators=[Length(max=120)])
+    clinic_phone = StringField(
+        lazy_gettext("Clinic phone"),
+        validators=[Length(max=40), Regexp(r"^[0-9+()\- ]*$",
+                                           message=lazy_gettext("Digits, spaces, + ( ) - only."))])
     stock_alert_weeks = IntegerField(
         lazy_gettext("Stock alert threshold (weeks of stock left)"),
         validators=[InputRequired(), NumberRange(min=0)])

@@ -28,7 +28,7 @@ from markupsafe import Markup
 from clinic_app import caregiver_sheet, clock, pdf
 from clinic_app.i18n import _, available_locales, get_locale, text_direction
 from clinic_app.i18n_export import catalog_info
-from clinic_app.storage import audit, db
+from clinic_app.storage import audit, db, profile
 from clinic_app.storage import settings as settings_store
 from clinic_app.web import public
 
@@ -48,13 +48,8 @@ def language_choices(selected: str) -> list[dict]:
 
 
 def _clinic(conn) -> caregiver_sheet.ClinicInfo:
-    try:
-        from clinic_app.storage import profile
-    except ImportError:  # the clinic profile arrives with the admin pages
-        return caregiver_sheet.ClinicInfo()
     found = profile.load(conn)
-    return caregiver_sheet.ClinicInfo(name=getattr(found, "clinic_name", ""),
-                                      phone=getattr(found, "clinic_phone", ""))
+    return caregiver_sheet.ClinicInfo(name=found.clinic_name, phone=found.clinic_phone)
 
 
 def _choice(value: str | None, allowed, default: str) -> str:

@@ -158,3 +158,15 @@ def test_the_case_page_links_to_its_caregiver_sheet(app, client, users, as_user)
     as_user("chw")
     page = client.get(f"/cases/{case_id}").get_data(as_text=True)
     assert f'href="/cases/{case_id}/sheet"' in page
+
+
+def test_the_sheet_footer_gives_the_clinic_name_and_phone_the_admin_saved(app, client, as_user):
+    from clinic_app.storage import profile
+
+    conn = db.connect(app.config["DATABASE"])
+    with db.write(conn):
+        profile.save(conn, profile.ClinicProfile(clinic_name="Siwelo Post",
+                                                 clinic_phone="+000 555 0101"),
+                     user_id=None, at="2026-12-02T09:00:00Z")
+    html = quick_sheet(client, as_user("nurse"), "en").get_data(as_text=True)
+    assert "Siwelo Post" in html and "+000 555 0101" in html
