@@ -76,7 +76,7 @@ def main() -> None:
             page.goto(server.url + "/login")
             page.fill("#username", USERNAME)
             page.fill("#password", PASSWORD)
-            page.click("button[type=submit]")
+            page.click("form[action$='/login'] button[type=submit]")
             page.wait_for_url(server.url + "/")
             page.goto(server.url + "/assess")
             poll(page, "() => navigator.serviceWorker.controller !== null")
