@@ -14,6 +14,7 @@ from datetime import datetime
 from flask import g, jsonify, request
 
 from clinic_app import clock
+from clinic_app.clinical.rulebook import rulebook_version
 from clinic_app.i18n import _
 from clinic_app.storage import audit, cases, devices
 from clinic_app.storage import settings as settings_store
@@ -191,7 +192,8 @@ def upload_cases():
             results[index] = {"id": case.id, "error": None,
                               "status": store_case(conn, case, raw, in_transaction=True)}
         devices.touch(conn, device["id"], received_at)
-    return jsonify({"results": results})
+    # The rulebook in force: a phone holding another version fetches it after this sync.
+    return jsonify({"results": results, "rulebook_version": rulebook_version(settings)})
 
 
 @bp.get("/cases/<case_id>")

@@ -99,12 +99,28 @@ async function ensureDevice(outbox) {
   }
 }
 
+/**
+ * After a sync, fetch the rulebook again when the clinic's version changed (an admin changed a
+ * setting): the service worker's network-first rule puts the new one in its cache, so the next
+ * offline assessment uses it.
+ */
+async function refreshRulebook(outbox, version) {
+  if (!version || version === await outbox.meta("rulebook_version")) return;
+  const response = await fetch("/api/v1/rulebook", { credentials: "same-origin" });
+  if (response.ok && (await response.json()).version === version) {
+    await outbox.setMeta("rulebook_version", version);
+  }
+}
+
 async function startOutbox() {
   if (!("indexedDB" in globalThis)) return null;
   const outbox = await openOutbox();
   if (navigator.storage?.persist) navigator.storage.persist().catch(() => false);
-  const scheduler = new SyncScheduler(outbox, { fetchFn: (...args) => fetch(...args),
-                                                onChange: showSync });
+  const onChange = (summary) => {
+    showSync(summary);
+    refreshRulebook(outbox, summary.rulebookVersion).catch(() => null);
+  };
+  const scheduler = new SyncScheduler(outbox, { fetchFn: (...args) => fetch(...args), onChange });
   const refresh = async () => showCount(await outbox.count());
   for (const button of document.querySelectorAll("[data-outbox-send]")) {
     button.addEventListener("click", () => scheduler.trigger());

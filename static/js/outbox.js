@@ -176,8 +176,9 @@ function groups(items) {
 }
 
 /**
- * One sync attempt. Returns {ok, reason, sent, rejected, waiting}; ok is false when the server
- * was out of reach or refused the phone (reason "unreachable" | "unregistered" | "server").
+ * One sync attempt. Returns {ok, reason, sent, rejected, waiting, rulebookVersion}; ok is false
+ * when the server was out of reach or refused the phone (reason "unreachable" | "unregistered" |
+ * "server"). rulebookVersion is the version the server has in force, when it answered.
  */
 export async function syncOnce(outbox, fetchFn) {
   const summary = { ok: true, reason: null, sent: 0, rejected: 0, waiting: 0 };
@@ -199,6 +200,7 @@ export async function syncOnce(outbox, fetchFn) {
         break;
       }
       await outbox._ack(outcome.acked, outcome.rejected);
+      if (outcome.rulebookVersion) summary.rulebookVersion = outcome.rulebookVersion;
       summary.sent += outcome.acked.length;
       summary.rejected += outcome.rejected.length;
     }
@@ -232,7 +234,7 @@ async function postBatch(fetchFn, spec, token, batch) {
     if (ACKED.has(result.status)) acked.push(item);
     else if (result.status === "rejected") rejected.push({ item, error: result.error });
   }
-  return { acked, rejected };
+  return { acked, rejected, rulebookVersion: body.rulebook_version || null };
 }
 
 /**

@@ -269,3 +269,20 @@ test("two triggers at once share one sync", async () => {
   await Promise.all([scheduler.trigger(), scheduler.trigger()]);
   assert.equal(server.posts.length, 1);
 });
+
+test("a sync reports the rulebook version the server has in force", async () => {
+  const outbox = await freshOutbox();
+  await queue(outbox, 1);
+  await outbox.setDevice("amina", { device_id: "d", token: "t" });
+  const server = fakeServer();
+  const original = server.fetch;
+  server.fetch = async (url, options) => {
+    const response = await original(url, options);
+    if (url === "/api/v1/ping") return response;
+    const body = await response.json();
+    return json(200, { ...body, rulebook_version: "v2" });
+  };
+  const summary = await syncOnce(outbox, server.fetch);
+  assert.equal(summary.sent, 1);
+  assert.equal(summary.rulebookVersion, "v2");
+});

@@ -259,3 +259,18 @@ def test_the_overview_shows_the_last_backup_time(app, client, admin):
     maybe_daily_backup(app.config["DATABASE"], f"{app.instance_path}/backups", taken)
     page = client.get("/admin").get_data(as_text=True)
     assert 'id="last-backup">2026-12-01T22:00:00Z<' in page
+
+
+def test_the_next_phone_sync_receives_the_new_rulebook_version(app, client, admin, users):
+    before = client.get("/api/v1/rulebook").get_json()["version"]
+    client.post("/admin/settings", data={**_form(ng_trained=True), "csrf_token": admin})
+    after = client.get("/api/v1/rulebook").get_json()["version"]
+    assert after != before
+    client.post("/api/v1/logout", headers={"X-CSRFToken": admin})
+    csrf = login(client, "chw")
+    token = client.post("/api/v1/devices", json={"label": "p"},
+                        headers={"X-CSRFToken": csrf}).get_json()["token"]
+    response = client.post("/api/v1/cases", json={"cases": []},
+                           headers={"Authorization": f"Bearer {token}", "X-Clinic-Sync": "1"})
+    assert response.status_code == 200
+    assert response.get_json()["rulebook_version"] == after
