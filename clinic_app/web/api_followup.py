@@ -38,8 +38,11 @@ def _upload(kind: str):
     settings = settings_store.load(conn)
     received_at = clock.iso(clock.now())
     owner = {"id": device["user_id"], "role": device["role"]}
-    results = [_one(conn, kind, raw, device, owner, settings, received_at) for raw in batch]
+    # One transaction for the whole batch: a full or read-only disk stores none of it, and the
+    # phone's retry sends it whole again.
     with write(conn):
+        results = [_one(conn, kind, raw, device, owner, settings, received_at)
+                   for raw in batch]
         devices.touch(conn, device["id"], received_at)
     return jsonify({"results": results})
 
@@ -68,7 +71,8 @@ def _one(conn, kind, raw, device, owner, settings, received_at) -> dict:
             row = records.BUILDERS[kind](case, raw, **common)
     except records.RecordRejected as exc:
         return {"id": raw_id, "status": "rejected", "error": str(exc)}
-    return {"id": row["id"], "status": records.save(conn, kind, row, raw), "error": None}
+    return {"id": row["id"], "error": None,
+            "status": records.save(conn, kind, row, raw, in_transaction=True)}
 
 
 @bp.post("/reassessments")

@@ -222,12 +222,15 @@ def _followup_date(case, given: object, outcome: str, visit: date,
 BUILDERS = {"monitoring": build_monitoring, "outcome": build_outcome}
 
 
-def save(conn, kind: str, row: dict, raw: dict) -> str:
-    """Store a built row with its audit entry in one transaction; return its status."""
-    with write(conn):
-        status = store.store(conn, kind, row, raw)
-        if status != "duplicate":
-            audit.record(conn, at=row["received_at"], user_id=row["user_id"],
-                         action=f"{kind}.{'create' if status == 'created' else 'conflict'}",
-                         record_type=kind, record_id=row["id"], device_id=row.get("device_id"))
+def save(conn, kind: str, row: dict, raw: dict, *, in_transaction: bool = False) -> str:
+    """Store a built row with its audit entry in one transaction (its own, or the caller's
+    when ``in_transaction``); return its status."""
+    if not in_transaction:
+        with write(conn):
+            return save(conn, kind, row, raw, in_transaction=True)
+    status = store.store(conn, kind, row, raw)
+    if status != "duplicate":
+        audit.record(conn, at=row["received_at"], user_id=row["user_id"],
+                     action=f"{kind}.{'create' if status == 'created' else 'conflict'}",
+                     record_type=kind, record_id=row["id"], device_id=row.get("device_id"))
     return status

@@ -94,6 +94,19 @@ def _checkpoint(app) -> None:
     conn.close()
 
 
+def _fill(filler, *, leave_bytes: int) -> None:
+    """Fill the disk with ``filler``, then give back ``leave_bytes``."""
+    fd = os.open(filler, os.O_WRONLY | os.O_CREAT)
+    try:
+        while True:
+            os.write(fd, b"\0" * 4096)
+    except OSError:
+        pass
+    finally:
+        os.close(fd)
+    os.truncate(filler, max(0, filler.stat().st_size - leave_bytes))
+
+
 def _assert_clear_storage_error(response, code: str) -> None:
     assert response.status_code == 503, response.get_data(as_text=True)
     error = response.get_json()["error"]
@@ -109,16 +122,8 @@ def test_a_full_disk_gives_a_clear_error_and_stores_no_part_of_the_batch(small_d
     client = app.test_client()
     _checkpoint(app)
     filler = small_disk / "filler"
-    fd = os.open(filler, os.O_WRONLY | os.O_CREAT)
-    try:
-        while True:
-            os.write(fd, b"\0" * 4096)
-    except OSError:
-        pass
-    finally:
-        os.close(fd)
     # Leave room for a case or two, not for the batch: a per-case commit would half-store it.
-    os.truncate(filler, max(0, filler.stat().st_size - 256 * 1024))
+    _fill(filler, leave_bytes=256 * 1024)
     batch = _batch()
     response = client.post("/api/v1/cases", json={"cases": batch}, headers=headers)
     _assert_clear_storage_error(response, "storage_full")
@@ -156,3 +161,30 @@ def test_a_read_only_database_gives_a_clear_error_and_stores_nothing(small_disk,
     retry = client.post("/api/v1/cases", json={"cases": batch}, headers=headers)
     assert retry.status_code == 200, retry.get_data(as_text=True)
     assert _stored(app, batch) == BATCH
+
+
+def test_a_full_disk_stores_no_part_of_a_batch_of_bedside_entries(small_disk):
+    if small_disk is None:
+        pytest.skip("needs root to mount a tiny tmpfs")
+    app = _app_on(small_disk)
+    headers = _phone(app)
+    client = app.test_client()
+    case = _batch()[0]
+    assert client.post("/api/v1/cases", json={"cases": [case]}, headers=headers
+                       ).status_code == 200
+    entries = [{"id": str(uuid.uuid4()), "case_id": case["id"], "at": "2026-12-01T10:00:00Z",
+                "what": "ors", "ml": 50} for _ in range(400)]
+    _checkpoint(app)
+    filler = small_disk / "filler"
+    _fill(filler, leave_bytes=64 * 1024)
+    response = client.post("/api/v1/monitoring", json={"entries": entries}, headers=headers)
+    _assert_clear_storage_error(response, "storage_full")
+    conn = sqlite3.connect(app.config["DATABASE"])
+    assert conn.execute("SELECT COUNT(*) FROM audit_log WHERE action = 'monitoring.create'"
+                        ).fetchone()[0] == 0
+    filler.unlink()
+    retry = client.post("/api/v1/monitoring", json={"entries": entries}, headers=headers)
+    assert retry.status_code == 200, retry.get_data(as_text=True)
+    assert conn.execute("SELECT COUNT(*) FROM audit_log WHERE action = 'monitoring.create'"
+                        ).fetchone()[0] == 400
+    conn.close()
