@@ -159,6 +159,13 @@ class ReassessForm(FlaskForm):
                             validators=[InputRequired()])
     weight_kg = DecimalField(lazy_gettext("Weight now (kg)"), places=None,
                              validators=[Optional(), NumberRange(min=0.5, max=250)])
+    unable_to_drink_or_breastfeed = BooleanField(lazy_gettext("Not able to drink or breastfeed"))
+    vomits_everything = BooleanField(lazy_gettext("Vomits everything"))
+    convulsions = BooleanField(lazy_gettext("Convulsions"))
+    shock = BooleanField(lazy_gettext("Weak or absent pulse (shock)"))
+
+
+DANGER_SIGNS = ("unable_to_drink_or_breastfeed", "vomits_everything", "convulsions", "shock")
 
 
 def new_input(base: dict, form: ReassessForm) -> dict:
@@ -169,6 +176,8 @@ def new_input(base: dict, form: ReassessForm) -> dict:
         signs["drinking"] = form.drinking.data
     out = {k: v for k, v in base.items() if k not in ("signs", "danger_signs")}
     out["signs"] = signs
+    # Danger signs are asked again: a child can deteriorate between assessments.
+    out["danger_signs"] = {name: getattr(form, name).data for name in DANGER_SIGNS}
     if form.weight_kg.data is not None:
         out["weight_kg"] = float(form.weight_kg.data)
     return out

@@ -152,3 +152,14 @@ def test_views_and_changes_are_audited_without_clinical_content(app, client, use
     dumped = " ".join(str(tuple(r)) for r in audit.entries(conn))
     assert "150" not in dumped and "ors" not in dumped
     conn.close()
+
+
+def test_a_danger_sign_at_reassessment_means_urgent_referral(app, client, users, as_user, clock):
+    # S07 IMCI general danger signs: refer URGENTLY.
+    case_id = seed_case(app, users["chw"])
+    as_user("chw")
+    token = form_token(client, f"/cases/{case_id}/reassess")
+    client.post(f"/cases/{case_id}/reassess", data={"csrf_token": token, **NONE,
+                                                    "convulsions": "y"})
+    latest = client.get(f"/cases/{case_id}").get_data(as_text=True).split('id="latest"')[1]
+    assert "refer URGENTLY" in latest

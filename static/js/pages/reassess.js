@@ -8,6 +8,7 @@ const out = document.getElementById("reassess-result");
 const data = JSON.parse(document.getElementById("reassess-data").textContent);
 const words = data.words;
 const state = { engine: null, rulebook: null };
+const DANGER_SIGNS = ["unable_to_drink_or_breastfeed", "vomits_everything", "convulsions", "shock"];
 
 function fill(template, params) {
   return template.replace(/%\((\w+)\)s/g, (_, name) => String(params[name]));
@@ -27,7 +28,8 @@ async function load() {
 function newInput() {
   const values = Object.fromEntries(new FormData(form));
   const input = { ...data.input };
-  delete input.danger_signs;
+  // Danger signs are asked again: a child can deteriorate between assessments.
+  input.danger_signs = Object.fromEntries(DANGER_SIGNS.map((name) => [name, values[name] === "y"]));
   input.signs = { condition: values.condition, eyes: values.eyes,
                   skin_pinch: values.skin_pinch };
   if (values.drinking) input.signs.drinking = values.drinking;
