@@ -53,7 +53,9 @@ def week_json(w: dict) -> dict:
 def parse_filter(args) -> tallies.TallyFilter:
     """The optional filters of a tallies request; ApiError 400 on a bad value."""
     worker = args.get("worker") or None
-    if worker is not None and not worker.isdigit():
+    # ASCII digits only, and few of them: "²" passes isdigit() but not int(), and a number
+    # of dozens of digits overflows SQLite's INTEGER (both were 500s under the fuzz test).
+    if worker is not None and not (worker.isascii() and worker.isdigit() and len(worker) <= 18):
         raise ApiError(400, "bad_filter", _("Some filters are not valid."),
                        {"worker": _("Use the number of a health worker.")})  # fmt: skip
     age = args.get("age_group") or None

@@ -59,7 +59,7 @@ def _case_for(app, client, csrf) -> str:
 
 
 def _check(response, what: str) -> None:
-    body = response.get_data(as_text=True)
+    body = response.get_data().decode("utf-8", "replace")  # PDFs and images too
     assert response.status_code < 500, f"{what}: {response.status_code}"
     assert "Traceback" not in body and 'File "' not in body, what
 
@@ -104,3 +104,34 @@ def test_a_form_route_survives_junk_and_oversized_fields(app, users, endpoint, r
         _check(client.post(url, data=data, headers=headers), f"{endpoint} with {data!r:.200}")
 
     send()
+
+
+QUERY_NAMES = ["from", "to", "area", "worker", "age_group", "sex", "lang", "size", "next",
+               "page", "week", "q", "kind"]
+
+
+def _get_routes() -> list[tuple[str, str]]:
+    import tempfile
+
+    with tempfile.TemporaryDirectory() as tmp:
+        app = create_app({**TEST_CONFIG, "DATABASE": f"{tmp}/routes.sqlite3"})
+        return sorted((rule.endpoint, rule.rule) for rule in app.url_map.iter_rules()
+                      if "GET" in rule.methods and not rule.rule.startswith("/api/")
+                      and rule.endpoint != "static")
+
+
+@pytest.mark.parametrize("endpoint,rule", _get_routes())
+def test_a_page_survives_junk_query_parameters(app, users, endpoint, rule):
+    role = roles_for(RULES[endpoint], "GET")[0] if endpoint in RULES else "admin"
+    client = app.test_client()
+    csrf = login(client, role)
+    url = sample_url(rule)
+    if "<case_id>" in rule:
+        url = sample_url(rule.replace("<case_id>", _case_for(app, client, csrf)))
+    for junk in JUNK[:-1]:
+        _check(client.get(url, query_string={name: junk for name in QUERY_NAMES}),
+               f"{endpoint} with every parameter {junk[:20]!r}")
+    _check(client.get(url, query_string={name: ["1", "x"] for name in QUERY_NAMES}),
+           f"{endpoint} with repeated parameters")
+    _check(client.get(url + "?from=2026-W01&to=9999-W52&lang=xx&size=a0"),
+           f"{endpoint} with a huge week range")

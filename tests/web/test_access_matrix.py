@@ -150,26 +150,27 @@ def test_every_state_changing_route_refuses_a_request_without_its_csrf_token(app
     assert "auth.login" in checked and "api.logout" in checked
 
 
-def test_the_sync_upload_needs_a_device_token_and_the_sync_header_not_a_session(app, client,
-                                                                                 users):
+def test_every_phone_upload_needs_a_device_token_and_the_sync_header_not_a_session(
+        app, client, users):
     csrf = login(client, "chw")
-    # A logged-in session with its CSRF header is not enough: sync is by device token only.
-    no_token = client.post("/api/v1/cases", json={"cases": []},
-                           headers={"X-CSRFToken": csrf, "X-Clinic-Sync": "1"})
-    assert no_token.status_code == 401
     token = client.post("/api/v1/devices", json={}, headers={"X-CSRFToken": csrf}
                         ).get_json()["token"]
-    no_header = client.post("/api/v1/cases", json={"cases": []},
-                            headers={"Authorization": f"Bearer {token}"})
-    assert no_header.status_code == 403
-    assert no_header.get_json()["error"]["code"] == "sync_header_required"
-    foreign = client.post("/api/v1/cases", json={"cases": []},
-                          headers={"Authorization": f"Bearer {token}", "X-Clinic-Sync": "1",
-                                   "Origin": "http://evil.example"})
-    assert foreign.status_code == 403
-    form = client.post("/api/v1/cases", data={"cases": "[]"},
-                       headers={"Authorization": f"Bearer {token}", "X-Clinic-Sync": "1"})
-    assert form.status_code == 403
+    device = {"Authorization": f"Bearer {token}", "X-Clinic-Sync": "1"}
+    uploads = [url for endpoint, method, url in routes(app)
+               if endpoint in RULES and RULES[endpoint].csrf == "device"]
+    assert "/api/v1/cases" in uploads
+    for url in uploads:
+        # A logged-in session with its CSRF header is not enough: sync is by device token only.
+        assert client.post(url, json={}, headers={"X-CSRFToken": csrf, "X-Clinic-Sync": "1"}
+                           ).status_code == 401, url
+        no_header = client.post(url, json={}, headers={"Authorization": device["Authorization"]})
+        assert no_header.status_code == 403, url
+        assert no_header.get_json()["error"]["code"] == "sync_header_required"
+        foreign = client.post(url, json={}, headers={**device, "Origin": "http://evil.example"})
+        assert foreign.status_code == 403, url
+        assert client.post(url, data={"x": "[]"}, headers=device).status_code == 403, url
+        revoked = client.post(url, json={}, headers={**device, "Authorization": "Bearer nope"})
+        assert revoked.status_code == 401, url
 
 
 def test_error_pages_and_the_login_page_carry_the_security_headers(client):
