@@ -17,6 +17,7 @@ from flask import (
     url_for,
 )
 from flask_wtf import FlaskForm
+from flask_wtf.csrf import generate_csrf
 from wtforms import PasswordField, StringField
 from wtforms.validators import DataRequired, Length
 
@@ -95,6 +96,10 @@ def start_session(user) -> None:
     session.clear()
     session["sid"] = token
     session.permanent = True
+    # Mint the form token now: pages and API calls the browser sends in parallel right after
+    # login (service-worker precache, device registration) then all share this one token
+    # instead of each minting their own and overwriting the cookie.
+    generate_csrf()
     current_app.permanent_session_lifetime = timedelta(hours=hours)
     g.user = user
 

@@ -131,3 +131,13 @@ def test_anonymous_pages_redirect_to_login_and_api_answers_401(app, client):
 def test_ping_is_public(client):
     response = client.get("/api/v1/ping")
     assert response.status_code == 200 and response.get_json()["ok"] is True
+
+
+def test_login_mints_the_form_token_so_parallel_requests_share_it(app, users):
+    # Requests a browser sends at once after login (precache, device registration) must not
+    # each mint a token and overwrite one another's cookie.
+    app.config["WTF_CSRF_ENABLED"] = False
+    client = app.test_client()
+    client.post("/login", data={"username": "nurse", "password": PASSWORD})
+    with client.session_transaction() as session:
+        assert session.get("csrf_token")
