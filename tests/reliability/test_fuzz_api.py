@@ -161,3 +161,12 @@ def test_thousands_of_generated_requests_get_no_server_error_and_clear_4xx(app, 
     assert problems == []
     assert caller.count >= TARGET_REQUESTS
     assert all(status < 500 for counts in caller.statuses.values() for status in counts)
+
+
+@pytest.mark.parametrize("worker", ["9" * 40, "²", "١٢"])
+def test_what_the_fuzzer_found_stays_fixed_tallies_worker_filter(client, users, worker):
+    login(client, "supervisor")
+    response = client.get("/api/v1/tallies", query_string={"from": "2026-W01", "to": "2026-W04",
+                                                           "worker": worker})
+    assert response.status_code == 400
+    assert response.get_json()["error"]["fields"]["worker"]
