@@ -12,7 +12,6 @@ import uuid
 import pytest
 
 from clinic_app.storage import db, devices
-from clinic_app.storage import users as user_store
 from tests.conftest import PASSWORD, login
 from tests.web.access_rules import ROLES, RULES
 
@@ -211,9 +210,11 @@ def test_disabling_a_user_revokes_their_sessions_and_quarantines_their_phone(app
     login(laptop, "chw")
     device = _register_device(phone_client)
     headers = {k: v for k, v in device.items() if k != "device_id"}
+    admin = app.test_client()
+    admin_csrf = login(admin, "admin")
+    assert admin.post(f"/admin/users/{users['chw']}/disable",
+                      headers={"X-CSRFToken": admin_csrf}).status_code in (302, 303)
     conn = _db(app)
-    with db.write(conn):
-        user_store.set_active(conn, users["chw"], False, "2026-12-02T10:00:00Z")
     assert laptop.get("/api/v1/me").status_code == 401
     assert phone_client.get("/api/v1/me").status_code == 401
     relogin = app.test_client().post("/api/v1/login",
@@ -228,6 +229,11 @@ def test_disabling_a_user_revokes_their_sessions_and_quarantines_their_phone(app
     stored = conn.execute("SELECT status FROM cases WHERE id = ?", (case["id"],)).fetchone()
     assert stored["status"] == "quarantined"
     conn.close()
+    # Enabling the account again does not bring the old phone back: it must register anew.
+    assert admin.post(f"/admin/users/{users['chw']}/enable",
+                      headers={"X-CSRFToken": admin_csrf}).status_code in (302, 303)
+    again = phone_client.post("/api/v1/cases", json={"cases": [_case()]}, headers=headers)
+    assert again.status_code == 401
 
 
 def test_a_phone_revoked_on_its_own_is_refused(app, users):
