@@ -16,8 +16,8 @@ from clinic_app.storage import settings as settings_store
 from clinic_app.storage.db import get_db, write
 from clinic_app.web import followup_records as records
 from clinic_app.web import public
-from clinic_app.web.api import api_error, bp, json_body
-from clinic_app.web.api_sync import MAX_BATCH, _sync_device
+from clinic_app.web.api import bp
+from clinic_app.web.api_sync import sync_batch
 from clinic_app.web.csrf import csrf
 
 # kind -> the body field holding the batch (the outbox's KINDS use the same names).
@@ -25,15 +25,7 @@ FIELDS = {"reassessment": "reassessments", "monitoring": "entries", "outcome": "
 
 
 def _upload(kind: str):
-    device = _sync_device()
-    field = FIELDS[kind]
-    batch = json_body().get(field)
-    if not isinstance(batch, list):
-        return api_error(400, "bad_batch", _("The body must be {\"%(field)s\": [...]}.",
-                                             field=field))
-    if len(batch) > MAX_BATCH:
-        return api_error(413, "batch_too_large",
-                         _("Send at most %(n)s records at a time.", n=MAX_BATCH))
+    device, batch = sync_batch(FIELDS[kind])
     conn = get_db()
     settings = settings_store.load(conn)
     received_at = clock.iso(clock.now())

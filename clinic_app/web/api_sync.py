@@ -49,7 +49,7 @@ def _same_origin(origin: str) -> bool:
     return origin.rstrip("/") == request.host_url.rstrip("/")
 
 
-def _sync_device():
+def sync_device():
     """The device of an authenticated sync call, or an ApiError (401/403)."""
     header = request.headers.get("Authorization", "")
     if not header.startswith("Bearer ") or not header[7:].strip():
@@ -68,6 +68,31 @@ def _sync_device():
     if origin is not None and not _same_origin(origin):
         raise ApiError(403, "bad_origin", _("This call must come from the app itself."))
     return device
+
+
+def sync_batch(field: str) -> tuple:
+    """(device, records) of an authenticated sync upload ``{field: [...]}``, or an ApiError."""
+    device = sync_device()
+    batch = json_body().get(field)
+    if not isinstance(batch, list):
+        raise ApiError(400, "bad_batch", _('The body must be {"%(field)s": [...]}.', field=field))
+    if len(batch) > MAX_BATCH:
+        raise ApiError(413, "batch_too_large",
+                       _("Send at most %(n)s records at a time.", n=MAX_BATCH))
+    return device, batch
+
+
+def recompute(inputs: dict, settings, rejected: type[Exception]) -> dict:
+    """The server's own assessment of uploaded input; ``rejected`` when the input is invalid."""
+    from clinic_app.clinical.assess import assess
+    from clinic_app.clinical.types import AssessmentInputError
+
+    try:
+        return assess(inputs, settings)
+    except AssessmentInputError as exc:
+        detail = "; ".join(f"{k}: {v}" for k, v in sorted(exc.fields.items()))
+        raise rejected(_("The assessment input is not valid (%(detail)s).",
+                         detail=detail)) from None
 
 
 def _text(case: dict, name: str, *, required: bool = False) -> str | None:
@@ -109,9 +134,6 @@ def _case_id(value: object) -> str:
 def build_case(raw: dict, *, user_id: int, device_id: str | None, user_active: bool,
                received_at: str, settings) -> cases.NewCase:
     """Check one uploaded case and recompute its result; raise CaseRejected when unusable."""
-    from clinic_app.clinical.assess import assess
-    from clinic_app.clinical.types import AssessmentInputError
-
     case_id = _case_id(raw.get("id"))
     if not case_id or case_id != raw.get("id"):
         raise CaseRejected(_("id must be a lower-case UUID."))
@@ -122,12 +144,7 @@ def build_case(raw: dict, *, user_id: int, device_id: str | None, user_active: b
         raise CaseRejected(_("given must be a JSON object."))
     if not isinstance(raw.get("referral_made", False), bool):
         raise CaseRejected(_("referral_made must be true or false."))
-    try:
-        server_result = assess(raw["input"], settings)
-    except AssessmentInputError as exc:
-        detail = "; ".join(f"{k}: {v}" for k, v in sorted(exc.fields.items()))
-        raise CaseRejected(_("The assessment input is not valid (%(detail)s).",
-                             detail=detail)) from None
+    server_result = recompute(raw["input"], settings, CaseRejected)
     return cases.NewCase(
         id=case_id, created_at=_created_at(raw.get("created_at")), received_at=received_at,
         user_id=user_id, device_id=device_id, area=_text(raw, "area") or "",
@@ -159,14 +176,7 @@ def store_case(conn, case: cases.NewCase, raw: dict, *, in_transaction: bool = F
 @public
 @csrf.exempt
 def upload_cases():
-    device = _sync_device()
-    data = json_body()
-    batch = data.get("cases")
-    if not isinstance(batch, list):
-        return api_error(400, "bad_batch", _('The body must be {"cases": [...]}.'))
-    if len(batch) > MAX_BATCH:
-        return api_error(413, "batch_too_large",
-                         _("Send at most %(n)s cases at a time.", n=MAX_BATCH))
+    device, batch = sync_batch("cases")
     conn = get_db()
     settings = settings_store.load(conn)
     received_at = clock.iso(clock.now())

@@ -107,19 +107,13 @@ def _iso(moment: datetime) -> str:
 def build_reassessment(conn, case, raw: dict, *, settings, user_id: int, device_id: str | None,
                        received_at: str) -> dict:
     """Recompute the new signs with the core and compare with the plan in force."""
-    from clinic_app.clinical.assess import assess
-    from clinic_app.clinical.types import AssessmentInputError
+    from clinic_app.web.api_sync import recompute
 
     rid = record_id(raw.get("id"))
     assessed = parse_time(raw.get("assessed_at"), "assessed_at")
     if not isinstance(raw.get("input"), dict):
         raise RecordRejected(_("input must be a JSON object."))
-    try:
-        server_result = assess(raw["input"], settings)
-    except AssessmentInputError as exc:
-        detail = "; ".join(f"{k}: {v}" for k, v in sorted(exc.fields.items()))
-        raise RecordRejected(_("The assessment input is not valid (%(detail)s).",
-                               detail=detail)) from None
+    server_result = recompute(raw["input"], settings, RecordRejected)
     phone_result = raw.get("result") if isinstance(raw.get("result"), dict) else server_result
     previous, started = current_plan(conn, case)[1:]
     previous_row = store.latest_reassessment(conn, case["id"])
