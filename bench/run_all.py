@@ -151,6 +151,9 @@ def main() -> int:
     print("Running the benchmarks (each in its own process)...", file=sys.stderr)
     rows = [row for script in scripts(args.only) for row in run(script)]
     print(table(rows))
+    for row in rows:
+        if row["value"] is None:
+            print(f"\n{row['measure']}: {row['note']}")
     if args.json:
         Path(args.json).write_text(json.dumps(rows, indent=1))
     return 0 if all(r["value"] is not None for r in rows) else 1
