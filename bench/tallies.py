@@ -59,7 +59,7 @@ def seed(conn, n: int, user_ids: list[int]) -> None:
             received_at="2027-03-01T00:00:00Z", user_id=user_ids[area % len(user_ids)],
             device_id=None, area=AREAS[area],
             input={"age_months": rng.choice((rng.uniform(0, 60), rng.uniform(0, 900))),
-                   "sex": rng.choice(("f", "m")), "blood_in_stool": False, "diarrhoea_days": 2},
+                   "sex": rng.choice(("female", "male")), "blood_in_stool": False, "diarrhoea_days": 2},
             result=server, server_result=server, payload_hash=f"h{i}",
             ors_sachets=rng.randrange(4), zinc_tablets=rng.choice((0, 10, 14)),
             referral_made=rng.random() < 0.3,

@@ -28,7 +28,10 @@ COUNTERS = (
     "dehydrated_given_ors", "zinc_advised", "zinc_advised_given", "severe_referred_or_plan_c",
 )  # fmt: skip
 
+# The sex filter's short codes, and how the clinical input spells them in stored cases
+# (clinic_app.clinical.growth.SEXES): the filter must compare with the stored spelling.
 SEXES = ("f", "m")
+STORED_SEX = {"f": "female", "m": "male"}
 
 _WEEK = "CAST((julianday(day) - julianday(:monday)) / 7 AS INTEGER)"
 _SUMS = ", ".join(f"SUM({name}) AS {name}" for name in COUNTERS)
@@ -46,11 +49,13 @@ class TallyFilter:
     def where(self) -> tuple[str, dict]:
         """The extra WHERE clauses and their parameters."""
         clauses, params = [], {}
+        if self.sex not in (None, "", *STORED_SEX):
+            raise ValueError(f"unknown sex {self.sex!r}")
         for column in ("area", "user_id", "age_group", "sex"):
             value = getattr(self, column)
             if value is not None and value != "":
                 clauses.append(f" AND {column} = :{column}")
-                params[column] = value
+                params[column] = STORED_SEX[value] if column == "sex" else value
         if self.age_group is not None and self.age_group not in AGE_GROUP_KEYS:
             raise ValueError(f"unknown age group {self.age_group!r}")
         return "".join(clauses), params
@@ -64,7 +69,7 @@ class TallyFilter:
                 params[column] = getattr(self, column)
         if self.sex:
             clauses.append(" AND coalesce(cases.sex, '') = :sex")
-            params["sex"] = self.sex
+            params["sex"] = STORED_SEX[self.sex]
         if self.age_group:
             low, high = age_bounds(self.age_group)
             clauses.append(" AND cases.age_months >= :age_low")

@@ -37,7 +37,7 @@ def synthetic_case(rng: random.Random, n: int, user_ids: list[int]) -> dict:
         "area": rng.choice(AREAS),
         "user_id": rng.choice(user_ids),
         "age_months": rng.choice([0.5, 1.99, 2, 7, 11.99, 12, 30, 59.9, 60, 120, 179.9, 180, 400]),
-        "sex": rng.choice(["f", "m", None]),
+        "sex": rng.choice(["female", "male", None]),  # as the clinical input spells it
         "severity": severity,
         "plan": plan,
         "refer": rng.choice(["none", "none", "routine", "urgent"]),

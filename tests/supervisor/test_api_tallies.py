@@ -5,6 +5,7 @@ from __future__ import annotations
 import pytest
 
 from tests.supervisor.synthetic import iso_label, local_day
+from tests.web.followup_helpers import SOME, seed_case
 
 
 def test_a_supervisor_gets_the_weekly_tallies_in_the_issue_shape(client, as_user, seeded):
@@ -56,3 +57,19 @@ def test_bad_requests_answer_400_naming_the_field(client, as_user, query, field)
     response = client.get(f"/api/v1/tallies?{query}")
     assert response.status_code == 400
     assert field in response.get_json()["error"]["fields"]
+
+
+@pytest.mark.parametrize("sex, other", [("female", "male"), ("male", "female")])
+def test_the_sex_filter_counts_cases_as_the_assessment_stores_them(app, client, as_user, users,
+                                                                   sex, other):
+    # The clinical input spells sex "female"/"male"; the filter's codes are f/m.
+    seed_case(app, users["chw"], signs=SOME, sex=sex)
+    seed_case(app, users["chw"], signs=SOME, sex=other)
+    seed_case(app, users["chw"], signs=SOME)  # sex not recorded: counted only without filter
+    as_user("supervisor")
+    week = "from=2026-W10&to=2026-W10"  # seed_case dates the cases 2026-03-02
+    counts = {code: client.get(f"/api/v1/tallies?{week}&sex={code}").get_json()["weeks"][0]
+              for code in ("f", "m")}
+    assert counts[sex[0]]["cases"] == 1 and counts[sex[0]]["by_plan"]["B"] == 1
+    assert counts[other[0]]["cases"] == 1
+    assert client.get(f"/api/v1/tallies?{week}").get_json()["weeks"][0]["cases"] == 3
