@@ -56,6 +56,36 @@ def test_a_nurse_filters_by_village_and_searches_by_household(app, client, users
     assert "MB-001" not in page and "KT-002" not in page
 
 
+def test_the_status_filter_separates_open_closed_and_each_outcome(app, client, users, as_user,
+                                                                   clock):
+    open_case = seed_case(app, users["chw"], household_ref="MB-OPEN")
+    seed_case(app, users["chw"], household_ref="MB-SHUT", created_at="2026-03-03T09:00:00Z")
+    as_user("chw")
+    shut = next(r["id"] for r in _cases(app) if r["household_ref"] == "MB-SHUT")
+    url = f"/cases/{shut}/outcome"
+    assert client.post(url, data={"csrf_token": form_token(client, url),
+                                  "outcome": "admitted"}).status_code == 302
+    listed = {status: client.get(f"/cases/?status={status}").get_data(as_text=True)
+              for status in ("", "open", "closed", "admitted", "died")}
+    assert "MB-OPEN" in listed[""] and "MB-SHUT" in listed[""]
+    assert "MB-OPEN" in listed["open"] and "MB-SHUT" not in listed["open"]
+    assert "MB-SHUT" in listed["closed"] and "MB-OPEN" not in listed["closed"]
+    assert "MB-SHUT" in listed["admitted"] and "MB-OPEN" not in listed["admitted"]
+    assert "MB-SHUT" not in listed["died"] and "MB-OPEN" not in listed["died"]
+    # The date range is inclusive at both ends, on the day the case was made.
+    page = client.get("/cases/?date_from=2026-03-02&date_to=2026-03-02").get_data(as_text=True)
+    assert "MB-OPEN" in page and "MB-SHUT" not in page
+    assert open_case in client.get("/cases/?date_to=2026-03-02").get_data(as_text=True)
+
+
+def _cases(app):
+    conn = db.connect(app.config["DATABASE"])
+    try:
+        return conn.execute("SELECT id, household_ref FROM cases").fetchall()
+    finally:
+        conn.close()
+
+
 def test_a_plan_b_case_falls_due_for_reassessment_at_4_hours(app, client, users, as_user,
                                                            clock):
     # S02: Plan B, reassess after four hours.
