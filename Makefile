@@ -28,6 +28,9 @@ system-packages:
 
 test-packages:
 	@$(MAKE) --no-print-directory apt-install PACKAGES="$(TEST_PACKAGES)"
+	@# Debian's and Ubuntu's nodejs come without npm (NodeSource's nodejs carries its own and
+	@# conflicts with the npm package): install it only when the command is missing.
+	@command -v npm >/dev/null || $(MAKE) --no-print-directory apt-install PACKAGES=npm
 
 .PHONY: apt-install
 apt-install:
