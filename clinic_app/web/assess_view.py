@@ -45,6 +45,7 @@ def words() -> dict[str, str]:
         "per_stool": _("After each loose stool: %(low)s-%(high)s ml of ORS"),
         "per_stool_any": _("After each loose stool: as much ORS as wanted"),
         "zinc": _("Zinc: %(mg)s mg once a day for %(min)s-%(max)s days"),
+        "zinc_fixed": _("Zinc: %(mg)s mg once a day for %(days)s days"),
         "refer_urgent": _("Refer urgently"), "refer_routine": _("Refer"),
         "refer_none": _("No referral needed"),
         "facility": _("%(name)s, phone %(phone)s"),
@@ -123,8 +124,13 @@ def present(result: dict, settings, age_months: float) -> dict:
                                       high=per_stool["high_ml"]))
     zinc = result.get("zinc")
     if zinc:
-        out["zinc_text"] = fill(w["zinc"], mg=zinc["mg_per_day"], min=zinc["days_min"],
-                                max=zinc["days_max"])
+        # A clinic that gives a fixed number of days sees "for 10 days", not "for 10-10 days".
+        if zinc["days_min"] == zinc["days_max"]:
+            out["zinc_text"] = fill(w["zinc_fixed"], mg=zinc["mg_per_day"],
+                                    days=zinc["days_min"])
+        else:
+            out["zinc_text"] = fill(w["zinc"], mg=zinc["mg_per_day"], min=zinc["days_min"],
+                                    max=zinc["days_max"])
     if result["refer"] != "none" and settings.referral_facility_name:
         out["facility_text"] = fill(w["facility"], name=settings.referral_facility_name,
                                     phone=settings.referral_facility_phone or "-")

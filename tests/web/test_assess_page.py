@@ -74,3 +74,69 @@ def test_saving_without_javascript_stores_one_case_even_if_sent_twice(app, clien
     row = cases.get(conn, case_id)
     assert row["plan"] == "B" and row["device_id"] is None and row["ors_sachets"] == 2
     assert [e["action"] for e in audit.entries(conn)].count("case.create") == 1
+
+
+def save_settings(app, **changes):
+    from clinic_app.clinical.types import ClinicSettings
+    from clinic_app.storage import settings as settings_store
+
+    conn = db.connect(app.config["DATABASE"])
+    with db.write(conn):
+        settings_store.save(conn, ClinicSettings(**changes), user_id=None, at="2026-12-01T08:00")
+    conn.close()
+
+
+def test_a_referral_names_the_clinics_facility_and_phone_beside_a_shape_not_colour_alone(
+        app, client, as_user):
+    save_settings(app, referral_facility_name="Siwelo District Hospital",
+                  referral_facility_phone="0977 000 111")
+    as_user("chw")
+    token = csrf_of(page(client))
+    # S04: a danger sign (convulsions) means refer urgently.
+    html = client.post("/assess", data={**SOME, "convulsions": "y", "csrf_token": token}
+                       ).get_data(as_text=True)
+    assert "Refer urgently" in html
+    assert "Siwelo District Hospital, phone 0977 000 111" in html
+    # The severity is spelled out in words next to an icon with one shape per severity.
+    card = html[html.index('data-slot="result"'):]
+    assert 'data-severity="some"' in html and "Some dehydration" in card
+    for shape in ("shape-none", "shape-some", "shape-severe"):
+        assert f'class="shape {shape}"' in card
+
+
+def test_no_referral_shows_no_facility(app, client, as_user):
+    save_settings(app, referral_facility_name="Siwelo District Hospital",
+                  referral_facility_phone="0977 000 111")
+    as_user("chw")
+    token = csrf_of(page(client))
+    html = client.post("/assess", data={**SOME, "csrf_token": token}).get_data(as_text=True)
+    assert "No referral needed" in html and "Siwelo" not in html
+
+
+def test_zinc_for_a_fixed_number_of_days_reads_as_one_number(app, client, as_user):
+    # S04 IMCI adaptation: 20 mg from 6 months, for 10 days (a clinic setting).
+    save_settings(app, zinc_days_min=10, zinc_days_max=10)
+    as_user("chw")
+    token = csrf_of(page(client))
+    html = client.post("/assess", data={**SOME, "csrf_token": token}).get_data(as_text=True)
+    assert "Zinc: 20 mg once a day for 10 days" in html and "10-10" not in html
+
+
+def test_zinc_over_a_range_of_days_shows_the_range(client, as_user):
+    # S10: 20 mg a day from 6 months, for 10-14 days (the default setting).
+    as_user("chw")
+    token = csrf_of(page(client))
+    html = client.post("/assess", data={**SOME, "csrf_token": token}).get_data(as_text=True)
+    assert "Zinc: 20 mg once a day for 10-14 days" in html
+
+
+def test_an_age_in_weeks_is_turned_into_months_for_the_young_infant_rules(client, as_user):
+    as_user("chw")
+    token = csrf_of(page(client))
+    # 5 weeks is a young infant (under 2 months, S04): no thirst sign, no zinc, referred.
+    form = {"age_value": "5", "age_unit": "weeks", "weight_kg": "4.2", "condition": "well",
+            "eyes": "normal", "skin_pinch": "quick", "csrf_token": token}
+    html = client.post("/assess", data=form).get_data(as_text=True)
+    assert 'data-severity="none"' in html
+    assert "Young infant (under 2 months)" in html
+    assert '<p data-slot="zinc_text" hidden></p>' in html

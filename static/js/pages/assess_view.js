@@ -82,7 +82,10 @@ export function present(result, settings, ageMonths, rules, w) {
   }
   const zinc = result.zinc;
   if (zinc) {
-    out.zinc_text = fill(w.zinc, { mg: zinc.mg_per_day, min: zinc.days_min, max: zinc.days_max });
+    // A clinic that gives a fixed number of days sees "for 10 days", not "for 10-10 days".
+    out.zinc_text = zinc.days_min === zinc.days_max
+      ? fill(w.zinc_fixed, { mg: zinc.mg_per_day, days: zinc.days_min })
+      : fill(w.zinc, { mg: zinc.mg_per_day, min: zinc.days_min, max: zinc.days_max });
   }
   if (result.refer !== "none" && settings.referral_facility_name) {
     out.facility_text = fill(w.facility, { name: settings.referral_facility_name,
