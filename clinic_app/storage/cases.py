@@ -137,6 +137,13 @@ def as_json(row: sqlite3.Row) -> dict:
     }
 
 
+def conflict_json(row: sqlite3.Row) -> dict:
+    """One kept conflicting payload as the API shows it to a reviewer."""
+    return {"received_at": row["received_at"], "user_id": row["user_id"],
+            "device_id": row["device_id"], "payload": json.loads(row["payload"]),
+            "resolved_at": row["resolved_at"]}
+
+
 def count(conn: sqlite3.Connection) -> int:
     return conn.execute("SELECT COUNT(*) FROM cases").fetchone()[0]
 

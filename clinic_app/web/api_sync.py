@@ -215,4 +215,7 @@ def get_case(case_id: str):
     with write(conn):
         audit.record(conn, at=clock.iso(clock.now()), user_id=g.user["id"], action="case.view",
                      record_type="case", record_id=row["id"])
-    return jsonify(cases.as_json(row))
+    # A re-send that differed (a conflict) never overwrote the case: it is kept for review here.
+    body = cases.as_json(row)
+    body["conflicts"] = [cases.conflict_json(c) for c in cases.conflicts_for(conn, row["id"])]
+    return jsonify(body)

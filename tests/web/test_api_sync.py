@@ -95,6 +95,22 @@ def test_the_same_id_with_a_different_payload_is_a_conflict_kept_apart(app, clie
     assert len(cases.conflicts_for(conn, case["id"])) == 1
 
 
+def test_a_kept_conflict_is_shown_beside_the_unchanged_case_for_review(
+        client, device, as_user):
+    case = make_case()
+    send(client, device, [case])
+    assert client.get(f"/api/v1/cases/{case['id']}").status_code == 401
+    as_user("nurse")
+    assert client.get(f"/api/v1/cases/{case['id']}").get_json()["conflicts"] == []
+    changed = {**copy.deepcopy(case), "note": "edited later"}
+    assert statuses(send(client, device, [changed])) == ["conflict"]
+    body = client.get(f"/api/v1/cases/{case['id']}").get_json()
+    assert body["note"] is None
+    [kept] = body["conflicts"]
+    assert kept["payload"]["note"] == "edited later" and kept["received_at"]
+    assert kept["resolved_at"] is None
+
+
 @pytest.mark.parametrize("change, field", [
     ({"id": "not-a-uuid"}, "id"),
     ({"created_at": "yesterday"}, "created_at"),
