@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import os
+
 import pytest
 
 from clinic_app import config, create_app
@@ -40,3 +42,25 @@ def test_tls_makes_the_session_cookie_secure():
     app = create_app({"TESTING": True, "SECRET_KEY": "x", "TLS": True, "DATABASE": ":memory:"})
     assert app.config["SESSION_COOKIE_SECURE"] is True
     assert app.config["SESSION_COOKIE_SAMESITE"] == "Strict"
+
+
+def test_instance_config_overrides_the_defaults_and_the_environment_overrides_both(
+        tmp_path, monkeypatch):
+    from flask import Flask
+
+    (tmp_path / "config.py").write_text('PORT = 9001\nHOST = "0.0.0.0"\nSECRET_KEY = "inst"\n')
+    for name in [n for n in os.environ if n.startswith(config.PREFIX)]:
+        monkeypatch.delenv(name)
+
+    def layered() -> Flask:
+        app = Flask("layering", instance_path=str(tmp_path), instance_relative_config=True)
+        config.load(app, None)
+        return app
+
+    app = layered()
+    assert (app.config["PORT"], app.config["HOST"]) == (9001, "0.0.0.0")
+    assert app.config["SECRET_KEY"] == "inst"
+    assert app.config["DATABASE"] == str(tmp_path / "clinic.sqlite3")
+    monkeypatch.setenv("CLINIC_APP_PORT", "9002")
+    app = layered()
+    assert (app.config["PORT"], app.config["HOST"]) == (9002, "0.0.0.0")

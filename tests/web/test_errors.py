@@ -55,7 +55,26 @@ def test_error_pages_are_translated_when_a_catalog_exists(client, users):
     login(client, "nurse")
     response = client.get("/no-such-page?lang=fr")
     assert response.status_code == 404
-    assert b'lang="' in response.data
+    assert 'lang="fr"' in response.get_data(as_text=True)
+    assert "Page introuvable" in response.get_data(as_text=True)
+
+
+def test_a_page_outside_the_users_role_gets_a_friendly_translated_403(client, users):
+    login(client, "chw")
+    response = client.get("/admin")
+    assert response.status_code == 403
+    html = response.get_data(as_text=True)
+    assert "This page is not for your role" in html and "<html" in html
+    assert "Traceback" not in html
+    french = client.get("/admin?lang=fr").get_data(as_text=True)
+    assert "<h1>Cette page n'est pas pour votre rôle</h1>" in french
+
+
+def test_a_bad_request_gets_a_friendly_400_page_not_a_trace(client, users):
+    response = client.post("/login", data={"username": "nurse", "password": "x"})
+    assert response.status_code == 400
+    html = response.get_data(as_text=True)
+    assert "<html" in html and "Reload the page" in html and "Traceback" not in html
 
 
 def test_every_html_response_carries_the_security_headers(client):
