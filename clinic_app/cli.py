@@ -66,12 +66,14 @@ def add_user_command(username, role, password, display_name, area):
 
 @click.command("seed-demo")
 @with_appcontext
-def seed_demo_command():
+@click.option("--staff-only", is_flag=True,
+              help="Only the staff logins: no demo cases or stock (the browser tests).")
+def seed_demo_command(staff_only):
     """Fill the database with the invented demo clinic (only when it has no users yet)."""
     from clinic_app import demo
 
     conn = open_db()
-    logins = demo.seed(conn)
+    logins = demo.seed(conn, with_activity=not staff_only)
     if logins:
         click.echo("Demo clinic created.")
     else:
