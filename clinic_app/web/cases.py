@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import json
 import uuid
-from datetime import datetime
+from datetime import datetime, timedelta
 
 from flask import Blueprint, abort, flash, g, redirect, render_template, request, url_for
 from flask_wtf import FlaskForm
@@ -227,8 +227,6 @@ def monitor(case_id: str):
     form = MonitorForm()
     error = None
     if form.validate_on_submit():
-        from datetime import timedelta
-
         moment = clock.now() - timedelta(minutes=form.minutes_ago.data or 0)
         raw = {"id": str(uuid.uuid4()), "case_id": case_id, "at": clock.iso(moment),
                "what": form.what.data, "ml": form.ml.data,
@@ -260,6 +258,10 @@ class OutcomeForm(FlaskForm):
                                                                        Length(max=200)])
     transport = StringField(lazy_gettext("Transport"), validators=[Optional(),
                                                                    Length(max=100)])
+    # A referral is often written down after the child has left: when did they leave?
+    referred_minutes_ago = IntegerField(lazy_gettext("Left for the referral (minutes ago)"),
+                                        default=0, validators=[Optional(), NumberRange(
+                                            min=0, max=7 * 24 * 60)])
     followup_date = DateField(lazy_gettext("Follow-up visit (leave empty to use the rule)"),
                               validators=[Optional()])
 
@@ -270,11 +272,13 @@ def outcome(case_id: str):
     form = OutcomeForm()
     error = None
     if form.validate_on_submit():
-        now = clock.iso(clock.now())
+        moment = clock.now()
+        now = clock.iso(moment)
+        left = moment - timedelta(minutes=form.referred_minutes_ago.data or 0)
         raw = {"id": str(uuid.uuid4()), "case_id": case_id, "at": now,
                "outcome": form.outcome.data, "improving": form.improving.data,
                "referred_to": form.referred_to.data or None,
-               "referred_at": now if form.outcome.data == "referred" else None,
+               "referred_at": clock.iso(left) if form.outcome.data == "referred" else None,
                "transport": form.transport.data or None,
                "followup_date": form.followup_date.data.isoformat()
                if form.followup_date.data else None}

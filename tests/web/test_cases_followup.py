@@ -170,6 +170,38 @@ def test_an_outcome_books_the_follow_up_visit_that_appears_in_the_due_list(
     conn.close()
 
 
+def test_a_referral_records_where_when_and_how_the_child_went(app, client, users, as_user,
+                                                              clock):
+    case_id = seed_case(app, users["chw"])
+    as_user("nurse")
+    clock.moment = START + timedelta(hours=5)
+    url = f"/cases/{case_id}/outcome"
+    response = client.post(url, data={
+        "csrf_token": form_token(client, url), "outcome": "referred",
+        "referred_to": "Siwelo District Hospital", "transport": "Motorbike ambulance",
+        "referred_minutes_ago": "90"})
+    assert response.status_code == 302
+    conn = db.connect(app.config["DATABASE"])
+    row = conn.execute("SELECT outcome, referred_to, referred_at, transport, at FROM outcomes"
+                       " WHERE case_id = ?", (case_id,)).fetchone()
+    conn.close()
+    # Recorded at 13:00; the child left 90 minutes earlier, at 11:30.
+    assert tuple(row) == ("referred", "Siwelo District Hospital", "2026-03-02T11:30:00Z",
+                          "Motorbike ambulance", "2026-03-02T13:00:00Z")
+    page = client.get(f"/cases/{case_id}").get_data(as_text=True)
+    assert "Siwelo District Hospital" in page and "Motorbike ambulance" in page
+    assert "left 2026-03-02 11:30" in page
+
+
+def test_a_negative_referral_delay_is_refused(app, client, users, as_user, clock):
+    case_id = seed_case(app, users["chw"])
+    as_user("chw")
+    url = f"/cases/{case_id}/outcome"
+    response = client.post(url, data={"csrf_token": form_token(client, url),
+                                      "outcome": "referred", "referred_minutes_ago": "-5"})
+    assert response.status_code == 422
+
+
 def test_views_and_changes_are_audited_without_clinical_content(app, client, users, as_user,
                                                                 clock):
     case_id = seed_case(app, users["chw"])

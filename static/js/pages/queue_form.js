@@ -28,7 +28,8 @@ function outcomePayload(v, id, now) {
   const at = new Date(now).toISOString();
   return { id, case_id: caseId, at, outcome: v.outcome, improving: v.improving === "y",
            referred_to: v.referred_to || null, transport: v.transport || null,
-           referred_at: v.outcome === "referred" ? at : null,
+           referred_at: v.outcome === "referred"
+             ? new Date(now - (number(v.referred_minutes_ago) || 0) * 60_000).toISOString() : null,
            followup_date: v.followup_date || null };
 }
 
