@@ -66,11 +66,92 @@ def local_fetcher(static_root: str | Path):
     return _fetcher_class()(str(static_root))
 
 
+# The PDF operators a pictogram may use to be replayed: paths, strokes and fills, colours,
+# line styles, transforms and WeasyPrint's alpha states (``/A1.0 gs``). Anything else (an
+# image, a clip, text, a pattern or shading) needs resources or state we do not track.
+_REPLAYABLE = frozenset(b"q Q cm w J j M d RG rg m l c v y h re S s f f* B B* b b* n gs".split())
+# WeasyPrint's stream remembers its current colours and alphas to skip repeated operators;
+# a recorded drawing is only valid from the same remembered state.
+_PEN = ("_current_color", "_current_color_stroke", "_current_alpha", "_current_alpha_stroke")
+
+
+class _ReplayedSVG:
+    """An SVG image of the shared cache whose drawing is recorded once per size and pen.
+
+    WeasyPrint walks the SVG tree again for every picture of every render: for the sheet's
+    two dozen pictograms that was a third of writing the PDF. Drawing a pictogram depends
+    only on its size and the pen state it starts from, so its operators are kept and appended
+    again next time. Drawings with other operators are not recorded: WeasyPrint draws them.
+    """
+
+    def __init__(self, image):
+        self._image = image
+        self._sizes: dict[tuple, tuple] = {}
+        self._takes: dict[tuple, tuple | None] = {}
+
+    def get_intrinsic_size(self, image_resolution, font_size):
+        key = (image_resolution, font_size)
+        if key not in self._sizes:
+            self._sizes[key] = self._image.get_intrinsic_size(image_resolution, font_size)
+        return self._sizes[key]
+
+    def draw(self, stream, width, height, style):
+        try:
+            key = (width, height, tuple(getattr(stream, name) for name in _PEN))
+            ops, depth = stream.stream, len(stream._ctm_stack)
+            states = stream._resources["ExtGState"]
+        except (AttributeError, KeyError, TypeError):  # a WeasyPrint we do not know
+            return self._image.draw(stream, width, height, style)
+        take = self._takes.get(key)
+        if take:
+            recorded, used_states, pen = take
+            ops.extend(recorded)
+            for name, state in used_states.items():
+                states.setdefault(name, state)
+            for name, value in zip(_PEN, pen, strict=True):
+                setattr(stream, name, value)
+            return
+        start = len(ops)
+        before = ops[start - 1] if start else None
+        self._image.draw(stream, width, height, style)
+        if key not in self._takes:
+            self._takes[key] = self._recording(stream, start, before, depth)
+
+    @staticmethod
+    def _recording(stream, start: int, before, depth: int) -> tuple | None:
+        """(operators, alpha states they name, pen after), or None if not replayable."""
+        ops = stream.stream
+        if len(ops) <= start or (start and ops[start - 1] is not before) or (
+                len(stream._ctm_stack) != depth):
+            return None
+        recorded = ops[start:]
+        used = {}
+        for op in recorded:
+            if not isinstance(op, bytes) or op.rsplit(b" ", 1)[-1] not in _REPLAYABLE:
+                return None
+            if op.endswith(b" gs"):
+                name = op[1:-3].decode()
+                if not op.startswith(b"/") or name not in stream._resources["ExtGState"]:
+                    return None
+                used[name] = stream._resources["ExtGState"][name]
+        return recorded, used, tuple(getattr(stream, name) for name in _PEN)
+
+
+class _ImageCache(dict):
+    """WeasyPrint's image cache (url -> image), with SVG images wrapped for replay."""
+
+    def __setitem__(self, url, image):
+        from weasyprint.images import SVGImage
+
+        super().__setitem__(url, _ReplayedSVG(image) if isinstance(image, SVGImage) else image)
+
+
 class _Shared:
     """Parsed stylesheets, their loaded fonts and decoded images, kept between renders.
 
-    Loading six font files and parsing every pictogram again for each sheet costs more than
-    laying the page out; one lock serialises renders because these objects are shared.
+    Loading six font files and parsing and drawing every pictogram again for each sheet
+    costs more than laying the page out; one lock serialises renders because these objects
+    are shared.
     """
 
     def __init__(self, static_root: str):
@@ -79,7 +160,7 @@ class _Shared:
         self.fetcher = local_fetcher(static_root)
         self.fonts = FontConfiguration()
         self.stylesheets: dict[str, object] = {}
-        self.images: dict = {}
+        self.images = _ImageCache()
         self.lock = threading.Lock()
 
     def stylesheet(self, name: str):
