@@ -3,6 +3,8 @@ over ten weeks, stock receipts, and a rise in one village that raises an unusual
 
 from __future__ import annotations
 
+import shutil
+import subprocess
 from datetime import UTC, datetime
 
 import pytest
@@ -73,3 +75,18 @@ def test_seed_demo_staff_only_prints_the_logins_and_adds_no_cases(app, runner):
     assert result.exit_code == 0 and "demo-chw-amina" in result.output
     assert _rows(app, "SELECT count(*) FROM cases")[0][0] == 0
     assert _rows(app, "SELECT count(*) FROM stock_movements")[0][0] == 0
+
+
+@pytest.mark.skipif(shutil.which("pdftotext") is None, reason="needs poppler's pdftotext")
+def test_the_weekly_report_pdf_holds_the_tallies_the_chart_and_the_alerts(demo_app, tmp_path):
+    client = demo_app.test_client()
+    login(client, "tomas", "demo-super-tomas")
+    response = client.get("/supervisor/export/report.pdf?from=2026-W39&to=2026-W48")
+    assert response.status_code == 200 and response.data[:5] == b"%PDF-"
+    (tmp_path / "report.pdf").write_bytes(response.data)
+    text = subprocess.run(["pdftotext", str(tmp_path / "report.pdf"), "-"], check=True,
+                          capture_output=True, text=True).stdout
+    assert "2026-W39" in text and "2026-W48" in text  # the weeks of the tallies table
+    assert "Cases by severity" in text  # the chart's title
+    alerts = text.rsplit("Alerts", 1)[1]  # the report's last section
+    assert "Siwelo" in alerts and "No alerts." not in alerts
