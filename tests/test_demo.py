@@ -90,3 +90,15 @@ def test_the_weekly_report_pdf_holds_the_tallies_the_chart_and_the_alerts(demo_a
     assert "Cases by severity" in text  # the chart's title
     alerts = text.rsplit("Alerts", 1)[1]  # the report's last section
     assert "Siwelo" in alerts and "No alerts." not in alerts
+
+
+@pytest.mark.parametrize("first", ["2026-W37", "2025-W49"])  # 12 and 52 weeks to 2026-W48
+def test_the_trend_charts_draw_12_to_52_weeks_and_one_small_chart_per_village(demo_app, first):
+    client = demo_app.test_client()
+    login(client, "tomas", "demo-super-tomas")
+    page = client.get(f"/supervisor/?from={first}&to=2026-W48").get_data(as_text=True)
+    charts = page.split("<svg")[1:]
+    assert len(charts) == 1 + len(demo.VILLAGES)  # severity trend, then one per village
+    assert all(f"<title>{v}" in page for v in demo.VILLAGES)
+    assert "http" not in "".join(c.split("</svg>")[0].replace(
+        'xmlns="http://www.w3.org/2000/svg"', "") for c in charts)
