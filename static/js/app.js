@@ -16,6 +16,11 @@ function say(key, n) {
 }
 
 // --- service worker and the "new version ready" prompt ---------------------------------------
+// Set when the user taps "reload now": the page reloads once the new worker takes over. (Not
+// "was the page controlled at load": a page first opened while the worker was still
+// installing is claimed later, and its update button must still reload it.)
+let updateAsked = false;
+
 function offerUpdate(worker) {
   if (document.getElementById("update-ready")) return;
   const bar = document.createElement("div");
@@ -27,7 +32,10 @@ function offerUpdate(worker) {
   const button = document.createElement("button");
   button.type = "button";
   button.textContent = say("update_reload");
-  button.addEventListener("click", () => worker.postMessage({ type: "SKIP_WAITING" }));
+  button.addEventListener("click", () => {
+    updateAsked = true;
+    worker.postMessage({ type: "SKIP_WAITING" });
+  });
   bar.append(text, button);
   body.prepend(bar);
 }
@@ -35,9 +43,8 @@ function offerUpdate(worker) {
 async function startServiceWorker() {
   if (!("serviceWorker" in navigator)) return;
   let reloading = false;
-  const hadController = Boolean(navigator.serviceWorker.controller);
   navigator.serviceWorker.addEventListener("controllerchange", () => {
-    if (hadController && !reloading) { reloading = true; location.reload(); }
+    if (updateAsked && !reloading) { reloading = true; location.reload(); }
   });
   try {
     const registration = await navigator.serviceWorker.register("/sw.js",
