@@ -145,6 +145,15 @@ def test_three_assessments_made_offline_reach_the_server_exactly_once(live_serve
                ".includes('3 waiting to send')", timeout=20)
     waiting = page.evaluate(READ_OUTBOX)
     assert len(waiting["items"]) == 3
+    # The worker's own recent cases stay readable offline, after a reload too.
+    page.reload()
+    wait_until_ready_offline(page)
+    page.wait_for_selector("#recent-list li")
+    recent = page.locator("#recent-list li").all_inner_texts()
+    assert len(recent) == 3
+    assert {"No dehydration", "Some dehydration", "Severe dehydration"} == {
+        text.split(" · ")[1] for text in recent}
+    assert any("Plan B: ORS in the clinic" in text for text in recent)
 
     live_server.start()  # back in range
     page.click("[data-outbox-send]")

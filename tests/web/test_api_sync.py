@@ -62,6 +62,20 @@ def test_registering_a_device_needs_the_csrf_header(client, as_user):
     assert client.post("/api/v1/devices", json={}).status_code == 400
 
 
+def test_the_device_token_is_stored_only_as_a_hash(app, client, as_user):
+    csrf = as_user("chw")
+    body = client.post("/api/v1/devices", json={}, headers={"X-CSRFToken": csrf}).get_json()
+    assert len(body["token"]) >= 32
+    conn = db_conn(app)
+    rows = [tuple(row) for row in conn.execute("SELECT * FROM devices")]
+    assert len(rows) == 1
+    assert not any(body["token"] in str(value) for value in rows[0])
+    dump = "\n".join(conn.iterdump())
+    assert body["token"] not in dump and body["device_id"] in dump
+    # Shown once: reading the user's own data never gives it back.
+    assert body["token"] not in client.get("/api/v1/me").get_data(as_text=True)
+
+
 def test_registering_a_device_needs_a_login(client, users):
     response = client.post("/api/v1/devices", json={})
     assert response.status_code == 401

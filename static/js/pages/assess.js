@@ -158,7 +158,8 @@ async function showRecent(ctx) {
   const section = document.getElementById("recent");
   section.hidden = rows.length === 0;
   fillList(document.getElementById("recent-list"), rows, (row) => item(
-    [row.created_at.slice(0, 16).replace("T", " "), row.severity_text, `Plan ${row.plan}`,
+    [row.created_at.slice(0, 16).replace("T", " "), row.severity_text,
+     words[`plan_${row.plan}`] || row.plan,
      row.household_ref || ""].filter(Boolean).join(" · ")));
 }
 
