@@ -59,23 +59,17 @@ def cups(volume_ml: float, cup_ml: int) -> float:
     return quarters / CUP_QUARTERS
 
 
-# The cup pictogram's inside: top edge y=18 from x=12 to 46, bottom y=54 from x=16 to 42.
-_CUP_TOP, _CUP_BOTTOM, _CUP_TAPER = 18, 54, 4
-
-
-def _cup_fill_points(fill: float) -> str:
-    """SVG polygon points of the liquid in a cup filled to ``fill`` (0..1)."""
-    y = _CUP_BOTTOM - (_CUP_BOTTOM - _CUP_TOP) * fill
-    inset = _CUP_TAPER * (y - _CUP_TOP) / (_CUP_BOTTOM - _CUP_TOP)
-    return f"{12 + inset:g},{y:g} {46 - inset:g},{y:g} 42,54 16,54"
-
-
 def cup_pictures(volume_ml: float, cup_ml: int) -> list[dict]:
-    """The cups to draw, e.g. 1.75 cups -> a full cup and a cup three quarters full."""
+    """The cups to draw, e.g. 1.75 cups -> a full cup and a cup three quarters full.
+
+    Each fill has its own pictogram (static/icons/sheet/cup_25.svg ... cup_100.svg): a
+    picture file is parsed once per process and its drawing reused by the PDF renderer,
+    where a drawing inside the page was parsed and drawn again for every sheet.
+    """
     amount = cups(volume_ml, cup_ml)
     full = int(amount)
     fills = [1.0] * full + ([amount - full] if amount > full else [])
-    return [{"fill": f, "points": _cup_fill_points(f)} for f in fills]
+    return [{"fill": f, "icon": f"cup_{round(f * 100)}"} for f in fills]
 
 
 def spoons(volume_ml: float) -> int:

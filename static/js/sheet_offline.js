@@ -30,20 +30,13 @@ export function cups(volumeMl, cupMl) {
   return Math.max(1, Math.floor(volumeMl / cupMl * CUP_QUARTERS + 0.5)) / CUP_QUARTERS;
 }
 
-function cupFillPoints(fill) {
-  const y = 54 - 36 * fill;
-  const inset = 4 * (y - 18) / 36;
-  const n = (v) => String(Number(v.toFixed(6)));
-  return `${n(12 + inset)},${n(y)} ${n(46 - inset)},${n(y)} 42,54 16,54`;
-}
-
 function amount(volumeMl, cupMl, spoonMl, fmt, withSpoons) {
   const c = cups(volumeMl, cupMl);
   const full = Math.floor(c);
   const fills = [...Array(full).fill(1), ...(c > full ? [c - full] : [])];
   return {
     ml: fmt.ml(volumeMl), cups: fmt.number(c),
-    cup_fills: fills.map((fill) => ({ fill, points: cupFillPoints(fill) })),
+    cup_fills: fills.map((fill) => ({ fill, icon: `cup_${Math.round(fill * 100)}` })),
     spoons: withSpoons ? fmt.number(Math.max(1, Math.floor(volumeMl / spoonMl + 0.5))) : null,
   };
 }
@@ -104,7 +97,7 @@ const esc = (s) => String(s).replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`)
 const icon = (name, label = '') => `<img class="icon" src="${ICONS}${name}.svg" alt="${esc(label)}"${label ? '' : ' aria-hidden="true"'}>`;
 
 function cupRow(a, t) {
-  const pics = a.cup_fills.map((f) => `<svg class="cup" viewBox="0 0 64 64" width="40" height="40" aria-hidden="true"><polygon points="${f.points}" fill="#7fb2e5"/><path d="M46 26h5a6 6 0 0 1 0 12h-6" fill="none" stroke="#1a1a1a" stroke-width="3"/><path d="M12 18h34l-4 36H16z" fill="none" stroke="#1a1a1a" stroke-width="3"/></svg>`).join('');
+  const pics = a.cup_fills.map((f) => `<img class="cup" src="${ICONS}${f.icon}.svg" alt="" aria-hidden="true">`).join('');
   return `<span class="cups" role="img" aria-label="${esc(t('%(n)s cups', { n: a.cups }))}">${pics}</span>`;
 }
 
