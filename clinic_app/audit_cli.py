@@ -27,13 +27,12 @@ def verify_command():
     conn = db.connect(current_app.config["DATABASE"])
     try:
         db.migrate(conn)
-        total = conn.execute("SELECT COUNT(*) FROM audit_log").fetchone()[0]
+        total = audit.count(conn)
         broken = audit.verify(conn)
         if broken is None:
             click.echo(f"OK: the audit log's {total} entries form an unbroken chain.")
             return
-        row = conn.execute("SELECT id, at, action, record_type, record_id FROM audit_log"
-                           " WHERE id = ?", (broken,)).fetchone()
+        row = audit.entry(conn, broken)
     finally:
         conn.close()
     click.echo(f"BROKEN: audit log row {row['id']} ({row['at']} {row['action']} "

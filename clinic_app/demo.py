@@ -51,7 +51,7 @@ RECEIPTS = ((DEMO_WEEKS, 400, 600), (4, 200, 300))
 def seed(conn: sqlite3.Connection, *, with_activity: bool = True) -> list[tuple[str, str, str]]:
     """Create the demo staff (and, unless told not to, their invented cases and stock) when
     the database has no users; return (user, role, password)."""
-    if conn.execute("SELECT count(*) FROM users").fetchone()[0]:
+    if users.count(conn):
         return []
     at = clock.iso(clock.system_now())
     with db.write(conn):

@@ -44,6 +44,16 @@ def verify(conn: sqlite3.Connection) -> int | None:
     return None
 
 
+def count(conn: sqlite3.Connection) -> int:
+    """How many entries the log holds."""
+    return conn.execute("SELECT COUNT(*) FROM audit_log").fetchone()[0]
+
+
+def entry(conn: sqlite3.Connection, entry_id: int) -> sqlite3.Row | None:
+    """One log entry by id."""
+    return conn.execute("SELECT * FROM audit_log WHERE id = ?", (entry_id,)).fetchone()
+
+
 def entries(conn: sqlite3.Connection, *, limit: int = 200) -> list[sqlite3.Row]:
     return conn.execute("SELECT audit_log.*, users.username FROM audit_log"
                         " LEFT JOIN users ON users.id = audit_log.user_id"

@@ -25,6 +25,11 @@ def by_id(conn: sqlite3.Connection, user_id: int) -> sqlite3.Row | None:
     return conn.execute("SELECT * FROM users WHERE id = ?", (user_id,)).fetchone()
 
 
+def count(conn: sqlite3.Connection) -> int:
+    """How many accounts exist (disabled ones included)."""
+    return conn.execute("SELECT count(*) FROM users").fetchone()[0]
+
+
 def all_users(conn: sqlite3.Connection) -> list[sqlite3.Row]:
     return conn.execute("SELECT * FROM users ORDER BY role, username").fetchall()
 
