@@ -44,3 +44,25 @@ def test_pages_link_the_manifest_and_load_no_inline_script(client, as_user):
     html = client.get("/").get_data(as_text=True)
     assert 'rel="manifest"' in html
     assert "<script>" not in html and "onclick" not in html
+
+
+def test_no_template_carries_inline_script_style_or_handler():
+    # The CSP (script-src 'self'; style-src 'self') would block them: keep them out at the source.
+    import re
+    from pathlib import Path
+
+    import clinic_app
+
+    root = Path(clinic_app.__file__).parent / "templates"
+    templates = [p for p in root.rglob("*.html")]
+    assert len(templates) > 20
+    problems = []
+    for path in templates:
+        html = path.read_text()
+        for tag in re.findall(r"<script\b[^>]*>", html):
+            if "src=" not in tag and 'type="application/json"' not in tag:
+                problems.append(f"{path.name}: inline {tag}")
+        for pattern in (r"<style\b", r"\sstyle=", r"javascript:",
+                        r"\son(click|load|submit|change|input|error|focus|blur|key\w*|mouse\w*)\s*="):
+            problems += [f"{path.name}: {m}" for m in re.findall(pattern, html, re.IGNORECASE)]
+    assert problems == []
