@@ -63,7 +63,8 @@ class AssessForm(FlaskForm):
     oedema_both_feet = BooleanField(lazy_gettext("Swelling (oedema) of both feet"))
     condition = RadioField(lazy_gettext("General condition"), choices=_choices(
         ("well", lazy_gettext("Well, alert")), ("restless", lazy_gettext("Restless, irritable")),
-        ("lethargic", lazy_gettext("Lethargic or unconscious"))), validators=[Optional()])
+        ("lethargic", lazy_gettext("Lethargic or unconscious (under 2 months: moves only when "
+                                   "stimulated, or not at all)"))), validators=[Optional()])
     eyes = RadioField(lazy_gettext("Eyes"), choices=_choices(
         ("normal", lazy_gettext("Normal")), ("sunken", lazy_gettext("Sunken"))),
         validators=[Optional()])
@@ -83,7 +84,8 @@ class AssessForm(FlaskForm):
 SIGN_HINTS = {
     "condition": lazy_gettext("Watch the child: alert, fussy, or hard to wake?"),
     "eyes": lazy_gettext("Look at the eyes; ask the mother if they look usual."),
-    "drinking": lazy_gettext("Offer a cup or spoon and watch how the child drinks."),
+    "drinking": lazy_gettext("Offer a cup or spoon and watch how the child drinks. Not asked "
+                             "under 2 months."),
     "skin_pinch": lazy_gettext("Pinch the belly skin for one second, let go, count."),
 }
 

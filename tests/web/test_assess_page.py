@@ -28,6 +28,9 @@ def test_the_form_asks_danger_signs_first_and_the_four_signs_with_hints(client, 
                                      "Blood in the stool")]
     assert order == sorted(order)
     assert html.count('class="hint"') >= 5
+    # Young infants (under 2 months, S04/S07): what "lethargic" means, and no thirst sign.
+    assert "moves only when stimulated, or not at all" in html
+    assert "Not asked under 2 months." in html
     assert "<template id=\"result-template\">" in html
 
 
