@@ -98,6 +98,10 @@ def load(app, test_config: dict | None) -> None:
     app.config["SESSION_COOKIE_HTTPONLY"] = True
     app.config["SESSION_COOKIE_SAMESITE"] = "Strict"
     app.config["SESSION_COOKIE_SECURE"] = bool(app.config["TLS"])
+    # Send the session cookie only when the session changes. Refreshing it on every response
+    # lets a slow response (a service-worker precache started before login) put back an older
+    # cookie over a newer one; the server-side session carries the expiry anyway.
+    app.config["SESSION_REFRESH_EACH_REQUEST"] = False
     app.config["WTF_CSRF_TIME_LIMIT"] = 3600
     app.config["BABEL_TRANSLATION_DIRECTORIES"] = str(Path(app.root_path).parent / "translations")
 

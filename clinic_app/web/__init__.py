@@ -52,7 +52,10 @@ def _gate():
         from clinic_app.web.api import api_error
 
         return api_error(401, "login_required", _("Please log in first."))
-    session["next"] = request.full_path if request.method == "GET" else None
+    # Remember where a person was going, but only for a page they navigated to: background
+    # fetches (the service worker's precache) must not rewrite the session cookie.
+    if request.method == "GET" and request.headers.get("Sec-Fetch-Mode", "navigate") == "navigate":
+        session["next"] = request.full_path
     return redirect(url_for("auth.login"))
 
 

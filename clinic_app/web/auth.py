@@ -149,9 +149,10 @@ def login():
     if form.validate_on_submit():
         outcome, user = attempt_login(form.username.data.strip(), form.password.data)
         if outcome == "ok":
+            target = session.get("next")  # read before start_session clears the session
             start_session(user)
-            target = session.pop("next", None)
-            return redirect(target if target and target.startswith("/") else url_for("home.index"))
+            safe = target and target.startswith("/") and not target.startswith("//")
+            return redirect(target if safe else url_for("home.index"))
         if outcome == "throttled":
             form.form_errors.append(_("Too many failed attempts. Wait a minute and try again."))
             status = 429

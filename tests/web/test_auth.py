@@ -141,3 +141,23 @@ def test_login_mints_the_form_token_so_parallel_requests_share_it(app, users):
     client.post("/login", data={"username": "nurse", "password": PASSWORD})
     with client.session_transaction() as session:
         assert session.get("csrf_token")
+
+
+def test_after_login_the_form_returns_to_the_page_that_asked_for_it(app, users):
+    app.config["WTF_CSRF_ENABLED"] = False
+    client = app.test_client()
+    assert client.get("/assess").headers["Location"].endswith("/login")
+    response = client.post("/login", data={"username": "nurse", "password": PASSWORD})
+    assert response.headers["Location"].rstrip("?") == "/assess"
+
+
+def test_a_background_fetch_does_not_rewrite_the_session_cookie(client, users):
+    # A service-worker precache started before login must not put an old cookie back.
+    response = client.get("/assess", headers={"Sec-Fetch-Mode": "same-origin"})
+    assert response.status_code == 302
+    assert "Set-Cookie" not in response.headers
+
+
+def test_a_logged_in_page_view_does_not_resend_the_session_cookie(client, users):
+    login(client, "nurse")
+    assert "Set-Cookie" not in client.get("/api/v1/me").headers
