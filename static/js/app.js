@@ -74,9 +74,13 @@ function showCount(waiting) {
 
 function showSync(summary) {
   showCount(summary.waiting);
+  // Records the server refused leave the count: say so, or they would vanish unnoticed.
+  const parts = [];
+  if (summary.sent) parts.push(say("sent", summary.sent));
+  if (summary.rejected) parts.push(say("rejected", summary.rejected));
+  if (!summary.ok) parts.push(say(summary.reason === "unreachable" ? "unreachable" : "not_sent"));
   for (const el of document.querySelectorAll("[data-outbox-state]")) {
-    el.textContent = summary.ok ? (summary.sent ? say("sent", summary.sent) : "")
-      : say(summary.reason === "unreachable" ? "unreachable" : "not_sent");
+    el.textContent = parts.join(" ");
   }
 }
 

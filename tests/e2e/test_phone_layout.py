@@ -6,7 +6,7 @@ from __future__ import annotations
 import pytest
 
 from clinic_app.demo import STAFF
-from tests.e2e.test_offline import log_in, wait_until_ready_offline
+from tests.e2e.test_offline import log_in, poll, wait_until_ready_offline
 
 pytestmark = pytest.mark.browser
 
@@ -55,3 +55,25 @@ def test_the_result_shows_one_shape_and_words_for_each_severity(
     assert page.evaluate(VISIBLE_SHAPES) == [f"shape shape-{severity}"]
     assert page.evaluate("() => document.documentElement.scrollWidth") <= 360
     assert page.console_errors == []
+
+
+def test_a_record_the_server_refuses_is_reported_not_silently_dropped(live_server, page):
+    log_in(page, live_server.url)
+    page.goto(live_server.url + "/assess")
+    wait_until_ready_offline(page)
+    poll(page, """() => import("/static/js/outbox.js").then((m) => m.openOutbox())
+        .then((o) => o.device(document.body.dataset.user)).then(Boolean)""")
+    # A case whose input the server's own validation refuses (no signs at all).
+    page.evaluate("""() => import("/static/js/outbox.js").then((m) => m.openOutbox())
+      .then((o) => { const id = crypto.randomUUID();
+        return o.add({kind: "case", id, owner: document.body.dataset.user,
+          payload: {id, created_at: new Date().toISOString(), area: "", input: {age_months: 12},
+                    result: {}, given: {ors_sachets: 0, zinc_tablets: 0}, referral_made: false,
+                    caregiver_language: ""}}); })""")
+    page.click("[data-outbox-send]")
+    poll(page, "() => document.querySelector('[data-outbox-state]').textContent"
+               ".includes('1 not accepted by the clinic server')")
+    assert "Nothing waiting" in page.inner_text("[data-outbox-count]")
+    failed = page.evaluate("""() => import("/static/js/outbox.js").then((m) => m.openOutbox())
+      .then((o) => o.failed())""")
+    assert len(failed) == 1 and "signs" in failed[0]["error"]
