@@ -141,6 +141,12 @@ def roles_required(*roles: str):
     return decorator
 
 
+def is_local_path(target: str | None) -> bool:
+    """True for a path on this server. Browsers read "//x" and "/\\x" as another host."""
+    return bool(target) and target.startswith("/") and not target.startswith("//") \
+        and "\\" not in target
+
+
 @bp.route("/login", methods=["GET", "POST"])
 @public
 def login():
@@ -151,8 +157,7 @@ def login():
         if outcome == "ok":
             target = session.get("next")  # read before start_session clears the session
             start_session(user)
-            safe = target and target.startswith("/") and not target.startswith("//")
-            return redirect(target if safe else url_for("home.index"))
+            return redirect(target if is_local_path(target) else url_for("home.index"))
         if outcome == "throttled":
             form.form_errors.append(_("Too many failed attempts. Wait a minute and try again."))
             status = 429

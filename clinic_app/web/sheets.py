@@ -31,6 +31,7 @@ from clinic_app.i18n_export import catalog_info
 from clinic_app.storage import audit, db, profile
 from clinic_app.storage import settings as settings_store
 from clinic_app.web import public
+from clinic_app.web.auth import is_local_path
 
 bp = Blueprint("sheets", __name__)
 
@@ -225,6 +226,6 @@ def choose_language():
     if lang in available_locales():
         session["lang"] = lang
     target = request.form.get("next") or ""
-    if not target.startswith("/") or target.startswith("//"):
+    if not is_local_path(target):
         target = url_for("home.index")
     return redirect(target)

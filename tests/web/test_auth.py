@@ -5,6 +5,8 @@ from __future__ import annotations
 import re
 from datetime import UTC, datetime, timedelta
 
+import pytest
+
 from clinic_app.storage import db, sessions
 from clinic_app.storage import users as user_store
 from tests.conftest import PASSWORD, login
@@ -161,3 +163,24 @@ def test_a_background_fetch_does_not_rewrite_the_session_cookie(client, users):
 def test_a_logged_in_page_view_does_not_resend_the_session_cookie(client, users):
     login(client, "nurse")
     assert "Set-Cookie" not in client.get("/api/v1/me").headers
+
+
+@pytest.mark.parametrize("target, local", [
+    ("/cases", True), ("/sheet/x?lang=fr", True), ("", False), (None, False),
+    ("https://elsewhere.example/", False), ("//elsewhere.example/", False),
+    ("/\\elsewhere.example/", False), ("cases", False),
+])
+def test_only_paths_on_this_server_count_as_local(target, local):
+    from clinic_app.web.auth import is_local_path
+
+    assert is_local_path(target) is local
+
+
+def test_the_language_chooser_never_sends_the_user_to_another_host(app, client):
+    app.config["WTF_CSRF_ENABLED"] = False
+    for target in ("//elsewhere.example/", "/\\elsewhere.example/", "https://elsewhere.example/"):
+        response = client.post("/language", data={"lang": "fr", "next": target})
+        assert response.status_code == 302
+        assert response.headers["Location"] == "/", target
+    kept = client.post("/language", data={"lang": "fr", "next": "/login"})
+    assert kept.headers["Location"] == "/login"
