@@ -117,8 +117,12 @@ def sam_shock_iv(weight_kg: float | None) -> dict:
 
 
 def zinc(age_months: float, settings: ClinicSettings) -> dict | None:
-    """10 mg under 6.0 months, 20 mg from 6.0 months; none under 2 months or from 5 years."""
+    """10 mg under 6.0 months, 20 mg from 6.0 months; none under 2 months, nor from the
+    clinic's upper age (``zinc_max_age_months``, 5 years by default, None for no limit)."""
     if age_months < RULES["zinc_min_age_months"]["value"]:
+        return None
+    upper = settings.zinc_max_age_months
+    if upper is not None and age_months >= upper:
         return None
     row = row_below(RULES["zinc"]["rows"], "max_age_months", age_months)
     if row is None:

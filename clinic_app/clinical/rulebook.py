@@ -230,8 +230,14 @@ _CORE: dict = {
                   "note": "Default of the clinic settings zinc_days_min/max (conflict C4)."},
     "zinc": {
         "source": "S04",
-        "note": "IMCI wording (conflict C5): under 6.0 months 10 mg, from 6.0 months 20 mg. Upper limit: IMCI scope, under 5 years (no fixed WHO limit).",
-        "rows": [{"max_age_months": 6, "mg_per_day": 10}, {"max_age_months": 60, "mg_per_day": 20}],
+        "note": "IMCI wording (conflict C5): under 6.0 months 10 mg, from 6.0 months 20 mg. The upper age is the clinic setting zinc_max_age_months.",
+        "rows": [{"max_age_months": 6, "mg_per_day": 10}, {"max_age_months": None, "mg_per_day": 20}],
+    },
+    "zinc_max_age_months": {
+        "value": 60, "source": "S04",
+        "note": "Default of the zinc_max_age_months setting (null = no upper age): IMCI covers "
+                "children under 5; WHO 2005 says 'children' with no fixed limit; a field guide "
+                "gives up to 15 years (reference section 5: a configurable policy).",
     },
     "zinc_min_age_months": {
         "value": 2, "source": "S07", "status": "unconfirmed",

@@ -19,6 +19,7 @@ class ClinicSettings:
     cholera_in_area: bool = False
     zinc_days_min: int = RULES["zinc_days"]["min"]
     zinc_days_max: int = RULES["zinc_days"]["max"]
+    zinc_max_age_months: int | None = RULES["zinc_max_age_months"]["value"]  # None: no limit
     referral_facility_name: str = ""
     referral_facility_phone: str = ""
     dysentery_policy_text: str = "Give the oral antibiotic for dysentery set by national policy."

@@ -72,6 +72,9 @@ class SettingsForm(FlaskForm):
                                  validators=[InputRequired(), NumberRange(min=1)])
     zinc_days_max = IntegerField(lazy_gettext("Zinc: most days"),
                                  validators=[InputRequired(), NumberRange(min=1)])
+    zinc_max_age_months = IntegerField(
+        lazy_gettext("Zinc: up to age in months (leave empty for no upper age)"),
+        validators=[Optional(), NumberRange(min=3, max=1440)])
     dysentery_policy_text = TextAreaField(lazy_gettext("Dysentery antibiotic policy"),
                                           validators=[DataRequired(), Length(max=600)])
     maintenance_above_20kg_ml_per_kg = SelectField(

@@ -40,12 +40,13 @@ SETTINGS = [
     ClinicSettings(iv_available=True, referral_facility_name="Mbeya Hill health centre",
                    referral_facility_phone="+000 555 0101"),
     ClinicSettings(plan_b_table="imci", ng_trained=True, minutes_to_iv_facility=45,
-                   zinc_days_min=10, zinc_days_max=10, maintenance_above_20kg_ml_per_kg=25),
+                   zinc_days_min=10, zinc_days_max=10, maintenance_above_20kg_ml_per_kg=25,
+                   zinc_max_age_months=180),
     ClinicSettings(minutes_to_iv_facility=20, cholera_in_area=True, cup_ml=250,
                    referral_facility_phone="+000 555 0199",
                    dysentery_policy_text="Give the antibiotic on the district list."),
     ClinicSettings(plan_b_table="imci", cholera_outbreak=True, iv_available=True,
-                   zinc_days_min=14, zinc_days_max=14),
+                   zinc_days_min=14, zinc_days_max=14, zinc_max_age_months=None),
 ]
 
 

@@ -247,6 +247,21 @@ def test_zinc_dose_by_age(age, mg):
         assert (zinc["days_min"], zinc["days_max"]) == (10, 14)  # S15: 10-14 days
 
 
+@pytest.mark.parametrize(("upper", "age", "mg"), [
+    pytest.param(180, 60, 20, id="ref-s5-field-guide-up-to-15-years-5y-gets-20mg"),
+    pytest.param(180, 179.99, 20, id="ref-s5-field-guide-up-to-15-years-just-under"),
+    pytest.param(180, 180, None, id="ref-s5-field-guide-up-to-15-years-none-at-15"),
+    pytest.param(None, 600, 20, id="ref-s5-WHO-2005-children-no-fixed-limit"),
+    pytest.param(24, 23.99, 20, id="ref-s5-a-stricter-clinic-limit-just-under"),
+    pytest.param(24, 24, None, id="ref-s5-a-stricter-clinic-limit-at-the-edge"),
+])
+def test_the_upper_age_of_zinc_is_a_clinic_setting(upper, age, mg):
+    # Reference section 5: the upper age is not fixed (IMCI under 5, S04; WHO 2005 "children";
+    # a field guide up to 15 years); the dose itself stays S04/S10.
+    zinc = run(case(age=age), zinc_max_age_months=upper)["zinc"]
+    assert (zinc and zinc["mg_per_day"]) == mg
+
+
 def test_zinc_days_come_from_the_settings():
     # C4: IMCI (Ethiopian) 10 days.
     result = run(case(age=30), zinc_days_min=10, zinc_days_max=10)

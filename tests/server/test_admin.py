@@ -77,7 +77,7 @@ def test_the_settings_page_has_every_field_of_the_issue(client, admin):
                  "plan_b_table", "iv_available", "ng_trained", "minutes_to_iv_facility",
                  "cholera_outbreak", "cholera_in_area", "zinc_days_min", "zinc_days_max",
                  "dysentery_policy_text", "cup_ml", "stock_alert_weeks", "default_languages",
-                 "maintenance_above_20kg_ml_per_kg"]:
+                 "maintenance_above_20kg_ml_per_kg", "zinc_max_age_months"]:
         assert f'name="{name}"' in page, name
 
 
@@ -98,6 +98,25 @@ def test_a_settings_change_is_versioned_audited_and_changes_the_rulebook(app, cl
     assert after["version"] != before and after["settings"]["cup_ml"] == 250
     assert {"settings_change", "profile_change"} <= set(_actions(app))  # name changed too
     assert after["version"][:12] in client.get("/admin/settings").get_data(as_text=True)
+
+
+def test_the_upper_age_for_zinc_is_set_here_and_empty_means_no_limit(app, client, admin):
+    # Reference section 5: IMCI stops at 5 years (S04) by default; a clinic may choose.
+    assert 'name="zinc_max_age_months" type="number" value="60"' in client.get(
+        "/admin/settings").get_data(as_text=True)
+    client.post("/admin/settings", data={**_form(zinc_max_age_months=180), "csrf_token": admin})
+    conn = _conn(app)
+    assert settings.load(conn).zinc_max_age_months == 180
+    # A browser sends an emptied number field as an empty string.
+    client.post("/admin/settings", data={**_form(), "zinc_max_age_months": "",
+                                         "csrf_token": admin})
+    assert settings.load(conn).zinc_max_age_months is None
+    conn.close()
+    rulebook = client.get("/api/v1/rulebook").get_json()
+    assert rulebook["settings"]["zinc_max_age_months"] is None
+    bad = client.post("/admin/settings", data={**_form(zinc_max_age_months=1),
+                                                "csrf_token": admin})
+    assert bad.status_code == 400
 
 
 def test_a_profile_only_change_keeps_the_rulebook_version(app, client, admin):

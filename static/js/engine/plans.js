@@ -113,6 +113,8 @@ export function samShockIv(rules, weightKg) {
 
 export function zinc(rules, ageMonths, settings) {
   if (ageMonths < rules.zinc_min_age_months.value) return null;
+  const upper = settings.zinc_max_age_months;
+  if (upper !== null && upper !== undefined && ageMonths >= upper) return null;
   const row = rowBelow(rules.zinc.rows, 'max_age_months', ageMonths);
   if (row === null) return null;
   return { mg_per_day: row.mg_per_day, days_min: settings.zinc_days_min,
