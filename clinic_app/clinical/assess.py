@@ -155,7 +155,8 @@ class _Assessment:
             return
         self.refer("urgent")
         self.act("refer_urgent_danger")
-        if self.plan in ("B", "C"):
+        # Plan C's own steps already say how to travel (drip, tube, or sips on the way).
+        if self.plan == "B":
             self.act("sips_on_the_way")
 
     # --- plans --------------------------------------------------------------------------------

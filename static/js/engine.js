@@ -136,7 +136,8 @@ class Assessment {
     if (!this.dangers.length) return;
     this.refer('urgent');
     this.act('refer_urgent_danger');
-    if (this.plan === 'B' || this.plan === 'C') this.act('sips_on_the_way');
+    // Plan C's own steps already say how to travel (drip, tube, or sips on the way).
+    if (this.plan === 'B') this.act('sips_on_the_way');
   }
 
   planA(out) {
