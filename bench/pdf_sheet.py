@@ -11,6 +11,9 @@ In one run, on a throw-away database with one invented case:
   language names in two more scripts), and the script checks that the page count is one;
 - cached: median time of the same request repeated for the unchanged case (served from the cache).
 
+Value and baseline run in turns, so a busy machine slows both alike; the last line gives the
+same ratio in CPU time of this process, which other programs on the machine barely move.
+
 Targets: value / baseline <= 1.5; cached / baseline <= 0.05.
 Not part of the test run: ``.venv/bin/python bench/pdf_sheet.py [--runs N] [--lang xx]``.
 """
