@@ -12,6 +12,7 @@ import re
 
 from clinic_app.clinical.rulebook import RULES
 from clinic_app.i18n import _
+from clinic_app.i18n_rules import localize, rule_texts
 
 _SLOT = re.compile(r"%\((\w+)\)s")
 
@@ -28,9 +29,11 @@ def num(value) -> str:
     return str(value)
 
 
-def words() -> dict[str, str]:
-    """Every text of the result screen, translated, with %(name)s slots."""
+def words() -> dict:
+    """Every text of the result screen, translated, with %(name)s slots; ``rule_texts`` maps
+    the rulebook's English action and caution templates to their translations."""
     return {
+        "rule_texts": rule_texts(_),
         "severity_none": _("No dehydration"), "severity_some": _("Some dehydration"),
         "severity_severe": _("Severe dehydration"),
         "plan_A": _("Plan A: treat at home"), "plan_B": _("Plan B: ORS in the clinic"),
@@ -96,8 +99,9 @@ def present(result: dict, settings, age_months: float) -> dict:
            "plan_text": w["plan_" + result["plan"]], "ors_text": "", "schedule": [],
            "cup_text": fill(w["cup_size"], cup_ml=settings.cup_ml), "per_stool_text": "",
            "zinc_text": "", "refer_text": w["refer_" + result["refer"]], "facility_text": "",
-           "actions": [a["text"] for a in result.get("actions", [])],
-           "cautions": [c["text"] for c in result.get("cautions", [])]}
+           "actions": [localize("actions", a, w["rule_texts"]) for a in result.get("actions", [])],
+           "cautions": [localize("cautions", c, w["rule_texts"])
+                        for c in result.get("cautions", [])]}
     ors = result.get("ors")
     if ors:
         if ors.get("total_ml") is None and ors.get("low_ml") is None:

@@ -18,10 +18,12 @@ from clinic_app.i18n_export import (
     po_path,
     set_status_headers,
 )
+from clinic_app.i18n_rules import extract as extract_rulebook
 
 ROOT = Path(__file__).resolve().parents[2]
 REQUIRED = ("fr", "pt", "es", "sw", "hi", "ar")
-PLACEHOLDER = re.compile(r"%\(\w+\)[sd]")
+# %(name)s for gettext strings, {name} for the rulebook's action and caution templates.
+PLACEHOLDER = re.compile(r"%\(\w+\)[sd]|\{[a-z0-9_]+\}")
 
 
 def source_msgids() -> set[str]:
@@ -31,6 +33,7 @@ def source_msgids() -> set[str]:
     for _file, _line, message, _comments, _context in extract_from_dir(
             str(ROOT / "clinic_app"), method_map, {}, keywords=keywords):
         found.add(message if isinstance(message, str) else message[0])
+    found |= {message for _line, _func, message, _comments in extract_rulebook(None, [], [], {})}
     return found
 
 

@@ -7,6 +7,70 @@ export function fill(template, params) {
   return template.replace(SLOT, (_, name) => String(params[name]));
 }
 
+// --- the rulebook's action and caution texts in the screen's language -------------------
+// The twin of clinic_app/i18n_rules.py: match the English template of the item's code against
+// the engine's text, then put the values into the translated template (English if no match).
+const BRACE = /\{([a-z0-9_]+)\}/g;
+
+function escapeRegExp(text) {
+  return text.replace(/[.*+?^${}()|[\]\\]/g, "\\$&");
+}
+
+function pattern(template) {
+  let source = "";
+  let pos = 0;
+  const names = new Set();
+  for (const match of template.matchAll(BRACE)) {
+    source += escapeRegExp(template.slice(pos, match.index));
+    const name = match[1];
+    source += names.has(name) ? `\\k<${name}>` : `(?<${name}>[\\s\\S]*?)`;
+    names.add(name);
+    pos = match.index + match[0].length;
+  }
+  return new RegExp(`^${source}${escapeRegExp(template.slice(pos))}$`);
+}
+
+function fillBraces(template, params) {
+  return template.replace(BRACE, (_, name) => {
+    if (!(name in params)) throw new Error(`no value for ${name}`);
+    return params[name];
+  });
+}
+
+function facility(value, rules, translations) {
+  const nameT = rules.facility_texts.name;
+  const phoneT = rules.facility_texts.phone;
+  for (const template of [nameT + phoneT, nameT, phoneT]) {
+    const found = value.match(pattern(template));
+    if (found) {
+      const groups = { ...found.groups };
+      const parts = [nameT, phoneT].filter((t) => t.match(/\{([a-z0-9_]+)\}/)[1] in groups);
+      const local = (t) => (Object.hasOwn(translations, t) ? translations[t] : t);
+      return fillBraces(parts.map(local).join(""), groups);
+    }
+  }
+  return value;
+}
+
+/** The text of one action or caution in the screen's language. */
+export function localize(rules, kind, item, translations) {
+  const entry = rules[kind].texts[item.code];
+  const text = item.text || "";
+  if (!entry || !Object.hasOwn(translations, entry.text)) return text;
+  const found = text.match(pattern(entry.text));
+  if (!found) return text;
+  const params = {};
+  for (const [name, value] of Object.entries(found.groups || {})) {
+    params[name] = Object.hasOwn(translations, value) ? translations[value] : value;
+  }
+  if ("facility" in params) params.facility = facility(found.groups.facility, rules, translations);
+  try {
+    return fillBraces(translations[entry.text], params);
+  } catch {
+    return text;
+  }
+}
+
 function rule(rules, name) {
   return rules[name].value;
 }
@@ -51,8 +115,8 @@ export function present(result, settings, ageMonths, rules, w) {
     plan_text: w[`plan_${result.plan}`], ors_text: "", schedule: [],
     cup_text: fill(w.cup_size, { cup_ml: settings.cup_ml }), per_stool_text: "",
     zinc_text: "", refer_text: w[`refer_${result.refer}`], facility_text: "",
-    actions: (result.actions || []).map((a) => a.text),
-    cautions: (result.cautions || []).map((c) => c.text),
+    actions: (result.actions || []).map((a) => localize(rules, "actions", a, w.rule_texts || {})),
+    cautions: (result.cautions || []).map((c) => localize(rules, "cautions", c, w.rule_texts || {})),
   };
   const ors = result.ors;
   if (ors) {
