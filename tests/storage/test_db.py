@@ -22,6 +22,7 @@ def test_connections_use_wal_foreign_keys_and_a_busy_timeout(conn):
     assert conn.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
     assert conn.execute("PRAGMA foreign_keys").fetchone()[0] == 1
     assert conn.execute("PRAGMA busy_timeout").fetchone()[0] >= 5000
+    assert conn.execute("PRAGMA synchronous").fetchone()[0] == 2  # FULL: durable on ack
 
 
 def test_a_failed_write_rolls_back_everything(conn):
