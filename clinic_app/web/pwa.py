@@ -22,8 +22,10 @@ bp = Blueprint("pwa", __name__)
 # script or engine module is precached without anyone editing this list).
 SHELL_FILES = ("css/app.css", "css/phone.css", "icons/icon.svg", "icons/icon-192.png", "icons/icon-512.png",
                "icons/maskable-512.png")
-# The offline caregiver sheet (issue 5): its styles, pictograms and JSON catalogs.
-SHEET_GLOBS = ("css/sheet*.css", "icons/sheet/*.svg", "i18n/*.json")
+# The offline caregiver sheet (issue 5): its styles and pictograms. The JSON language catalogs
+# are not precached (all seven would be most of the shell); the service worker keeps each one
+# the phone has used.
+SHEET_GLOBS = ("css/sheet*.css", "icons/sheet/*.svg")
 # Pages the worker keeps for offline use (no patient data in them: a blank form and a menu).
 OFFLINE_PAGES = ("/", "/assess", "/sheet/offline")
 

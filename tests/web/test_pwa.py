@@ -66,3 +66,12 @@ def test_no_template_carries_inline_script_style_or_handler():
                         r"\son(click|load|submit|change|input|error|focus|blur|key\w*|mouse\w*)\s*="):
             problems += [f"{path.name}: {m}" for m in re.findall(pattern, html, re.IGNORECASE)]
     assert problems == []
+
+
+def test_language_catalogs_are_kept_once_used_not_precached(app):
+    # All seven catalogs would be most of the shell (bench/page_weight.py budget, issue 4).
+    from clinic_app.web.pwa import shell_assets
+
+    assets = shell_assets(app.static_folder)
+    assert not [path for path in assets if path.startswith("i18n/")]
+    assert any(path.startswith("icons/sheet/") for path in assets)

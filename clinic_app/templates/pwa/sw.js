@@ -104,6 +104,20 @@ self.addEventListener("fetch", (event) => {
   }
   if (url.pathname.startsWith("/api/")) {
     event.respondWith(networkFirstApi(request, CACHEABLE_API.includes(url.pathname)));
+  } else if (url.pathname.startsWith("/static/i18n/")) {
+    // Language catalogs are kept once used, not precached: a phone needs one or two of them,
+    // and all of them would double the app shell a phone downloads on a slow link.
+    event.respondWith(fetch(request).then((response) => {
+      if (response.ok) {
+        const copy = response.clone();
+        caches.open(DATA_CACHE).then((cache) => cache.put(url.pathname, copy));
+      }
+      return response;
+    }).catch(async () => {
+      const cached = await caches.match(url.pathname, { cacheName: DATA_CACHE });
+      if (cached) return cached;
+      throw new TypeError("catalog not available offline");
+    }));
   } else if (url.pathname.startsWith("/static/") || url.pathname === "/manifest.webmanifest") {
     event.respondWith(caches.match(request, { cacheName: SHELL_CACHE, ignoreSearch: true })
       .then((cached) => cached || fetch(request)));
