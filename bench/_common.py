@@ -31,6 +31,22 @@ def emit(measure: str, value: float, unit: str, *, target: str, met: bool,
     print(PREFIX + json.dumps(line), flush=True)
 
 
+def app_with_user(tmp: str, username: str, role: str, password: str, **fields):
+    """A test-configured app on a fresh database in ``tmp`` with one user: (app, user id)."""
+    from clinic_app import create_app
+    from clinic_app.cli import add_user
+    from clinic_app.storage import db
+
+    app = create_app({"DATABASE": str(Path(tmp) / "bench.sqlite3"), "SECRET_KEY": "bench",
+                      "ARGON2_TIME_COST": 1, "ARGON2_MEMORY_COST": 8, "ARGON2_PARALLELISM": 1})
+    with app.app_context():
+        conn = db.connect(app.config["DATABASE"])
+        db.migrate(conn)
+        user_id = add_user(conn, username, role, password, **fields)
+        conn.close()
+    return app, user_id
+
+
 def free_port() -> int:
     with socket.socket() as sock:
         sock.bind(("127.0.0.1", 0))

@@ -15,12 +15,12 @@ from __future__ import annotations
 import gzip
 import json
 import re
+import sys
 import tempfile
 from pathlib import Path
 
-from clinic_app import create_app
-from clinic_app.cli import add_user
-from clinic_app.storage import db
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+from bench._common import app_with_user  # noqa: E402
 
 TARGET_TOTAL_KB = 150
 TARGET_JS_KB = 60
@@ -32,15 +32,8 @@ def gz(data: bytes) -> int:
 
 def main() -> None:
     with tempfile.TemporaryDirectory() as tmp:
-        app = create_app({"DATABASE": str(Path(tmp) / "bench.sqlite3"), "SECRET_KEY": "bench",
-                          "ARGON2_TIME_COST": 1, "ARGON2_MEMORY_COST": 8,
-                          "ARGON2_PARALLELISM": 1})
-        with app.app_context():
-            conn = db.connect(app.config["DATABASE"])
-            db.migrate(conn)
-            add_user(conn, "bench", "chw", "bench-password-1", display_name="Bench",
-                     area="Mbeza")
-            conn.close()
+        app, _user = app_with_user(tmp, "bench", "chw", "bench-password-1",
+                                   display_name="Bench", area="Mbeza")
         client = app.test_client()
         login = client.post("/api/v1/login",
                             json={"username": "bench", "password": "bench-password-1"})

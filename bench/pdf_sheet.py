@@ -32,9 +32,8 @@ from pathlib import Path
 import weasyprint
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
-from clinic_app import create_app, pdf  # noqa: E402
-from clinic_app.cli import add_user  # noqa: E402
-from clinic_app.storage import db  # noqa: E402
+from bench._common import app_with_user  # noqa: E402
+from clinic_app import pdf  # noqa: E402
 from tests.web.followup_helpers import seed_case  # noqa: E402
 
 TARGET_RATIO = 1.5
@@ -96,14 +95,7 @@ def main() -> int:
     parser.add_argument("--lang", default="en")
     args = parser.parse_args()
     with tempfile.TemporaryDirectory() as tmp:
-        app = create_app({"DATABASE": str(Path(tmp) / "bench.sqlite3"), "SECRET_KEY": "bench",
-                          "ARGON2_TIME_COST": 1, "ARGON2_MEMORY_COST": 8,
-                          "ARGON2_PARALLELISM": 1})
-        with app.app_context():
-            conn = db.connect(app.config["DATABASE"])
-            db.migrate(conn)
-            user_id = add_user(conn, "nurse", "nurse", PASSWORD)
-            conn.close()
+        app, user_id = app_with_user(tmp, "nurse", "nurse", PASSWORD)
         case_id = seed_case(app, user_id)
         client = app.test_client()
         assert client.post("/api/v1/login", json={"username": "nurse",

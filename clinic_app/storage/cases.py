@@ -151,10 +151,3 @@ def count(conn: sqlite3.Connection) -> int:
 def conflicts_for(conn: sqlite3.Connection, case_id: str) -> list[sqlite3.Row]:
     return conn.execute("SELECT * FROM case_conflicts WHERE case_id = ? ORDER BY id",
                         (case_id,)).fetchall()
-
-
-def recent_for_user(conn: sqlite3.Connection, user_id: int, *, limit: int = 20
-                    ) -> list[sqlite3.Row]:
-    """The user's own latest cases (for the phone's offline list)."""
-    return conn.execute("SELECT * FROM cases WHERE user_id = ? ORDER BY created_at DESC LIMIT ?",
-                        (user_id, limit)).fetchall()
