@@ -8,6 +8,7 @@ HTML page, and (as JSON) the phone's offline copy of the sheet.
 
 from __future__ import annotations
 
+import functools
 import hashlib
 import json
 import math
@@ -44,11 +45,15 @@ def rule(key: str) -> int:
     return RULES[key]["value"]
 
 
+# Formatting a number through Babel costs more than building the rest of the sheet; the
+# answers depend only on the arguments, and a clinic uses few volumes and few languages.
+@functools.lru_cache(maxsize=4096, typed=True)
 def ml(value: float, locale: str) -> str:
     """A volume in millilitres, as the locale writes it (e.g. "1 200 ml", "mililita 675")."""
     return format_unit(int(value), "volume-milliliter", length="short", locale=locale)
 
 
+@functools.lru_cache(maxsize=4096, typed=True)
 def number(value: float, locale: str) -> str:
     return format_decimal(value, locale=locale)
 

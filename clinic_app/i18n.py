@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 from pathlib import Path
 
 from flask import current_app, request, session
@@ -17,8 +18,18 @@ RTL_LANGUAGES = {"ar", "fa", "he", "ur"}
 def available_locales() -> list[str]:
     """English plus every folder in translations/ that holds a catalog."""
     root = Path(current_app.config["BABEL_TRANSLATION_DIRECTORIES"])
-    found = {p.parent.parent.name for p in root.glob("*/LC_MESSAGES/messages.po")}
-    return ["en", *sorted(found - {"en"})]
+    try:
+        # Adding or removing a language folder changes the folder's modification time.
+        stamp = root.stat().st_mtime_ns
+    except OSError:
+        stamp = None
+    return list(_locales_in(str(root), stamp))
+
+
+@functools.lru_cache(maxsize=8)
+def _locales_in(root: str, _stamp: int | None) -> tuple[str, ...]:
+    found = {p.parent.parent.name for p in Path(root).glob("*/LC_MESSAGES/messages.po")}
+    return ("en", *sorted(found - {"en"}))
 
 
 def text_direction(locale: str | None = None) -> str:

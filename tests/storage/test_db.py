@@ -79,3 +79,42 @@ def test_the_audit_log_is_append_only_and_hash_chained(conn):
     conn.execute("DROP TRIGGER audit_log_no_update")
     conn.execute("UPDATE audit_log SET record_id = 'other' WHERE id = 2")
     assert audit.verify(conn) == 2
+
+
+def test_the_app_keeps_one_idle_connection_so_a_request_closes_without_a_checkpoint(app):
+    """With no other connection open, closing the last one copies the log into the database
+    and deletes it; the app's idle connection spares each request that (storage.db)."""
+    from pathlib import Path
+
+    wal = Path(app.config["DATABASE"] + "-wal")
+    with app.app_context():
+        conn = db.get_db()
+        with db.write(conn):
+            conn.execute("INSERT INTO users (username, role, password_hash, created_at)"
+                         " VALUES ('probe', 'chw', 'h', 't')")
+    # The request's connection is closed; the log is still there, so no checkpoint ran.
+    assert wal.exists() and wal.stat().st_size > 0
+    keeper = app.extensions["clinic_app.storage.keeper"]
+    assert not keeper.in_transaction
+    db.release(app)
+    assert "clinic_app.storage.keeper" not in app.extensions
+    with pytest.raises(sqlite3.ProgrammingError):
+        keeper.execute("SELECT 1")  # closed
+    # The last connection closed: SQLite checkpointed and removed the log.
+    assert not wal.exists()
+
+
+def test_an_idle_connection_that_cannot_open_does_not_stop_the_request(app, monkeypatch):
+    real = db.connect
+    calls = []
+
+    def first_fails(path):
+        calls.append(path)
+        if len(calls) == 1:
+            raise sqlite3.OperationalError("unable to open database file")
+        return real(path)
+
+    monkeypatch.setattr(db, "connect", first_fails)
+    with app.app_context():
+        assert db.get_db().execute("SELECT 1").fetchone()[0] == 1
+    assert len(calls) == 2 and "clinic_app.storage.keeper" not in app.extensions
