@@ -37,6 +37,7 @@ bp = Blueprint("sheets", __name__)
 
 TEMPLATE = "sheets/sheet.html"
 STYLESHEETS = ("css/sheet.css",)
+USER_AGENT_SHEET = "css/sheet-ua.css"  # in place of WeasyPrint's HTML sheet (see the file)
 
 
 def language_choices(selected: str) -> list[dict]:
@@ -89,7 +90,8 @@ def sheet_pdf(sheet: dict, lang: str, size: str) -> bytes:
     # A5 is A4 scaled by 1/sqrt(2): the one-page A4 layout, zoomed, fills an A5 page exactly.
     layout, zoom = ("a4", 2 ** -0.5) if size == "a5" else (size, 1)
     with force_locale(lang):
-        return pdf.render_pdf(TEMPLATE, stylesheets=STYLESHEETS, zoom=zoom, s=sheet, lang=lang,
+        return pdf.render_pdf(TEMPLATE, stylesheets=STYLESHEETS, zoom=zoom,
+                              user_agent=USER_AGENT_SHEET, s=sheet, lang=lang,
                               dir=text_direction(lang), size=layout, toolbar_html=None)
 
 
@@ -100,10 +102,11 @@ def _ui_locale() -> str:
     return request.accept_languages.best_match(locales) or current_app.config["DEFAULT_LOCALE"]
 
 
-def _build(result: dict, age_months: float, lang: str, seen_on: date, conn) -> dict:
+def _build(result: dict, age_months: float, lang: str, seen_on: date, conn,
+           settings=None, clinic=None) -> dict:
     return caregiver_sheet.build(result, age_months=age_months,
-                                 settings=settings_store.load(conn), locale=lang,
-                                 seen_on=seen_on, clinic=_clinic(conn))
+                                 settings=settings if settings is not None else settings_store.load(conn), locale=lang,
+                                 seen_on=seen_on, clinic=clinic if clinic is not None else _clinic(conn))
 
 
 def _pdf_response(data: bytes, name: str) -> Response:
@@ -127,10 +130,10 @@ def _case_or_404(conn, case_id: str):
     return case
 
 
-def _case_sheet(case, lang: str, conn) -> dict:
+def _case_sheet(case, lang: str, conn, settings=None, clinic=None) -> dict:
     result = json.loads(case["server_result"] or case["result"])
     seen_on = datetime.fromisoformat(case["created_at"].replace("Z", "+00:00")).date()
-    return _build(result, case["age_months"], lang, seen_on, conn)
+    return _build(result, case["age_months"], lang, seen_on, conn, settings, clinic)
 
 
 @bp.get("/cases/<case_id>/sheet.pdf")
@@ -138,10 +141,11 @@ def case_pdf(case_id: str):
     conn = db.get_db()
     case = _case_or_404(conn, case_id)
     lang, size = _sheet_options(case["caregiver_language"])
-    settings_version = caregiver_sheet.settings_version(settings_store.load(conn), _clinic(conn))
-    key = (case_id, case["payload_hash"], lang, size, settings_version)
+    settings, clinic = settings_store.load(conn), _clinic(conn)
+    key = (case_id, case["payload_hash"], lang, size,
+           caregiver_sheet.settings_version(settings, clinic))
     data, _hit = pdf.cache.get_or_render(
-        key, lambda: sheet_pdf(_case_sheet(case, lang, conn), lang, size))
+        key, lambda: sheet_pdf(_case_sheet(case, lang, conn, settings, clinic), lang, size))
     _audit(conn, "sheet_print", case_id)
     return _pdf_response(data, f"sheet-{lang}-{size}")
 

@@ -101,6 +101,13 @@ function cupRow(a, t) {
   return `<span class="cups" role="img" aria-label="${esc(t('%(n)s cups', { n: a.cups }))}">${pics}</span>`;
 }
 
+/** A run of day cells, as the template writes them: squares are the span's background. */
+function tickCells(days, cls) {
+  if (!days.length) return '';
+  const cells = days.map((d) => `&#8199;&#8199;&#8199;${esc(d)}${'&#8199;'.repeat(Math.max(0, 3 - String(d).length))}&#8203;`);
+  return `<span class="${cls}">${cells.join('')}</span>`;
+}
+
 const SIGN_TEXT = {
   watery_stools: 'has many watery stools', vomiting: 'vomits again and again',
   thirsty: 'is very thirsty', not_drinking: 'cannot drink or breastfeed, or eats or drinks poorly',
@@ -117,7 +124,8 @@ export function renderSheet(s, t) {
     out.push(`<section class="alert" role="alert"><span class="pics">${icon('warning', t('Warning'))}</span><div class="txt">`,
       `<p class="big">${T('Go to the hospital now.')}</p><p>${T('On the way, give small sips of ORS often. Keep breastfeeding.')}</p></div></section>`);
   }
-  const step = (pics, text) => `<li><span class="pics">${pics.map((p) => icon(p)).join('')}</span><span class="txt">${text}</span></li>`;
+  // A list item's pictograms are its background (sheet.css), as in the template.
+  const step = (pics, text) => `<li class="pic pic-${pics.join('-')}">${text}</li>`;
   out.push(`<section class="box mix"><h2><span class="num">1</span> ${T('Mix the ORS')}</h2><ol class="steps">`,
     step(['hands'], T('Wash your hands with soap and water.')),
     step(['sachet', 'bottle'], T('Pour one sachet into %(water)s of clean water. If you are not sure the water is clean, boil it and let it cool.', { water: s.water })),
@@ -155,15 +163,15 @@ export function renderSheet(s, t) {
       `<p>${icon(z.half ? 'tablet_half' : 'tablet')} <strong class="numeral">${esc(z.tablets)}</strong> ${dose}</p>`,
       `<p>${T('Dissolve the tablet in a spoonful of breast milk, ORS or clean water. An older child may chew it.')}</p>`,
       `<p>${T('Keep giving zinc every day, even when the diarrhoea has stopped.')}</p>`,
-      `<p class="ticklabel">${T('Tick a box each day:')}</p><ol class="ticks">`,
-      z.boxes.map((d, i) => `<li class="${i < z.required ? 'required' : 'extra'}"><span class="box-tick" aria-hidden="true"></span>${esc(d)}</li>`).join(''),
-      '</ol></section>');
+      `<p class="ticklabel">${T('Tick a box each day:')}</p><p class="ticks">`,
+      tickCells(z.boxes.slice(0, z.required), 'days'), tickCells(z.boxes.slice(z.required), 'days extra'),
+      '</p></section>');
   }
   out.push(`<div class="row"><section class="box feed"><h2><span class="num">${s.zinc ? 4 : 3}</span> ${T('Keep feeding')}</h2>`,
     `<p>${icon('breastfeed')}${icon('food')} ${T('Keep breastfeeding, more often and for longer. Keep giving food.')}</p></section>`,
     `<div class="spacer"></div><section class="box followup"><h2>${icon('calendar')} ${T('Next visit')}</h2><p><strong>${esc(s.follow_up)}</strong></p></section></div>`);
   out.push(`<section class="box danger"><h2>${icon('warning', t('Warning'))} ${T('Come back at once if the child:')}</h2><ul class="signs">`,
-    s.return_signs.map((sign) => `<li><span class="pics">${icon(`sign_${sign}`)}</span><span class="txt">${T(SIGN_TEXT[sign], { days: s.not_better_days })}</span></li>`).join(''),
+    s.return_signs.map((sign) => `<li class="pic pic-sign_${sign}">${T(SIGN_TEXT[sign], { days: s.not_better_days })}</li>`).join(''),
     '</ul></section>');
   const foot = [];
   if (s.clinic.name || s.clinic.phone) foot.push(`${icon('phone')} ${esc(s.clinic.name)}${s.clinic.phone ? ` · ${esc(s.clinic.phone)}` : ''}`);

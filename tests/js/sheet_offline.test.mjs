@@ -41,8 +41,19 @@ test('the offline markup carries the amounts, the danger signs and the caution',
   const html = renderSheet(sheet, t);
   assert.match(html, /1,200 mL/); // S04: 75 ml/kg x 16 kg
   assert.match(html, /Cup = 250 mL/);
-  assert.equal((html.match(/class="box-tick"/g) || []).length, 14); // S10: up to 14 days
-  assert.match(html, /sign_blood\.svg/);
+  // S10: 10 days at least, up to 14: ten solid squares, then four dashed.
+  const required = html.match(/<span class="days">([^<]*)<\/span>/)[1];
+  const extra = html.match(/<span class="days extra">([^<]*)<\/span>/)[1];
+  assert.deepEqual(required.split('&#8203;').filter(Boolean).map((c) => c.replaceAll('&#8199;', '')),
+    ['1', '2', '3', '4', '5', '6', '7', '8', '9', '10']);
+  assert.deepEqual(extra.split('&#8203;').filter(Boolean).map((c) => c.replaceAll('&#8199;', '')),
+    ['11', '12', '13', '14']);
+  // Every cell is six figure widths: the squares of the background line up with the days.
+  for (const cell of (required + extra).split('&#8203;').filter(Boolean)) {
+    assert.equal(cell.replace(/&#8199;/g, ' ').length, 6, cell);
+  }
+  assert.match(html, /class="pic pic-sign_blood"/);
+  assert.match(html, /class="pic pic-sachet-bottle"/);
   assert.match(html, /Local protocols and the health worker&#39;s advice come first\./);
   assert.match(html, /Referral: Mbeza District Hospital/);
 });

@@ -77,3 +77,38 @@ def test_steps_and_danger_signs_stay_inside_their_boxes_without_overlapping(app,
             else:
                 assert first.position_x == pytest.approx(listed.content_box_x())
                 assert [i.position_x for i in row] == sorted(i.position_x for i in row)
+
+
+def text_boxes(box):
+    if hasattr(box, "text"):
+        yield box
+    for child in getattr(box, "children", ()):
+        yield from text_boxes(child)
+
+
+@pytest.mark.parametrize("lang", ["en", "hi", "ar"])
+def test_each_day_fills_one_cell_of_the_squares_background(app, client, as_user, lang):
+    """The tick squares are a background tile of 6ch; the days' text must be exactly 6ch a
+    day (digits and figure spaces of equal width), or squares and numbers drift apart."""
+    import weasyprint
+
+    page_html = quick_sheet(client, as_user("nurse"), lang).get_data(as_text=True)
+    document = weasyprint.HTML(string=page_html, base_url=pdf.BASE_URL,
+                               url_fetcher=pdf.local_fetcher(app.static_folder)).render()
+    page = document.pages[0]._page_box
+    # (A laid-out line can list one box twice: keep one per place.)
+    runs = list({(box.element.get("class"), box.position_x, box.position_y): box
+                 for box in boxes_of(page, "span", "days")}.values())
+    assert [r.element.get("class") for r in runs] == ["days", "days extra"]  # S10: 10, then 14
+    for run in runs:
+        cells = [c for c in "".join(t.text for t in text_boxes(run)).split("\u200b") if c]
+        ch = 0.572 * run.style["font_size"]  # Noto Sans: "0" is 572 units of 1000
+        width = sum(t.width for t in text_boxes(run))
+        assert width == pytest.approx(len(cells) * 6 * ch, abs=0.05), (lang, cells)
+    required, extra = runs
+    # Left to right, or right to left in Arabic: the extra days come after the required ones.
+    if lang == "ar":
+        assert extra.position_x + extra.margin_width() <= required.position_x + 0.01
+    else:
+        assert required.position_x + required.margin_width() <= extra.position_x + 0.01
+

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import re
+from html import unescape
 
 import pytest
 
@@ -42,10 +43,37 @@ def test_the_sheet_has_every_section_the_caregiver_needs(client, as_user):
                    "Next visit",
                    "Local protocols and the health worker"):
         assert phrase in html, phrase
-    assert len(re.findall(r'class="box-tick"', html)) == 14  # S10: up to 14 days
+    # S10: at least 10 days (solid squares), up to 14 (dashed): one cell of six figure
+    # widths per day, the squares being the background of each run.
+    required = re.search(r'<span class="days">([^<]*)</span>', html).group(1)
+    extra = re.search(r'<span class="days extra">([^<]*)</span>', html).group(1)
+    cells = [c for c in unescape(required + extra).split("\u200b") if c]
+    assert [c.replace("\u2007", "") for c in cells] == [str(d) for d in range(1, 15)]
+    assert all(len(c) == 6 for c in cells)
+    assert len([c for c in unescape(required).split("\u200b") if c]) == 10
     for sign in ("watery_stools", "vomiting", "thirsty", "not_drinking", "fever", "blood",
                  "not_better"):
-        assert f"icons/sheet/sign_{sign}.svg" in html
+        assert f'class="pic pic-sign_{sign}"' in html
+
+
+def test_every_pictogram_class_draws_a_bundled_picture(app, client, as_user):
+    """A list item's pictograms are backgrounds set by class in sheet.css: each class that the
+    template or the offline renderer writes must name pictures that exist."""
+    from pathlib import Path
+
+    static = Path(app.static_folder)
+    css = (static / "css" / "sheet.css").read_text(encoding="utf-8")
+    html = quick_sheet(client, as_user("nurse"), "en").get_data(as_text=True)
+    offline = (static / "js" / "sheet_offline.js").read_text(encoding="utf-8")
+    used = set(re.findall(r'class="pic (pic-[a-z_-]+)"', html))
+    assert len(used) == 4 + 7  # the four mixing steps and the seven danger signs
+    assert "pic pic-${pics.join('-')}" in offline and "pic pic-sign_${sign}" in offline
+    for name in used:
+        rule = re.search(r"\." + re.escape(name) + r" \{ background-image: ([^;]+);", css)
+        assert rule, f"sheet.css has no picture for .{name}"
+        pictures = re.findall(r'url\("\.\./(icons/sheet/[a-z_]+\.svg)"\)', rule.group(1))
+        assert len(pictures) == len(name.split("-")) - 1, name
+        assert all((static / picture).is_file() for picture in pictures), pictures
 
 
 def test_a_small_child_gets_spoons_and_half_a_zinc_tablet(client, as_user):
