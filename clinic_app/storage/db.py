@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import re
 import sqlite3
+import threading
 from collections.abc import Iterator
 from contextlib import contextmanager
 from importlib import resources
@@ -45,47 +46,60 @@ def write(conn: sqlite3.Connection) -> Iterator[sqlite3.Connection]:
     conn.execute("COMMIT")
 
 
-_KEEPER = "clinic_app.storage.keeper"
+_POOL = "clinic_app.storage.connections"
 
 
-def _keep_open(app) -> None:
-    """Hold one idle connection to the app's database for the life of the app.
+class _ThreadConnections(threading.local):
+    """The connection of each server thread to one database, kept between requests.
 
-    When the last connection to a WAL database closes, SQLite copies the log into the
-    database, syncs it and deletes the log: with a connection per request, every request that
-    wrote paid for that (half the time of a short request). While this one stays open, a
-    request's connection closes cheaply and SQLite checkpoints the log in the background of
-    commits, every 1000 pages. The idle connection holds no lock and starts no transaction.
+    Opening a connection is cheap, but its first statement reads the whole schema (a third
+    of a short request), and closing the last connection to a WAL database copies the log
+    into the database, syncs it and deletes it (half of a short request that wrote). The
+    server's threads live as long as the server, so each keeps its connection; SQLite then
+    checkpoints the log itself every 1000 pages. Between requests a connection is idle in
+    autocommit mode: it holds no lock and no transaction (``close_db`` makes sure).
     """
-    if _KEEPER in app.extensions:
-        return
-    try:
-        keeper = connect(app.config["DATABASE"])
-    except sqlite3.Error:
-        return  # only a saving: the request's own connection reports what is wrong
-    if app.extensions.setdefault(_KEEPER, keeper) is not keeper:
-        keeper.close()  # another thread opened one first
 
-
-def release(app) -> None:
-    """Close the idle connection of ``_keep_open`` (the next request opens another)."""
-    keeper = app.extensions.pop(_KEEPER, None)
-    if keeper is not None:
-        keeper.close()
+    conn: sqlite3.Connection | None = None
 
 
 def get_db() -> sqlite3.Connection:
-    """The connection of the current request (opened on first use, closed at teardown)."""
+    """The connection of the current thread (opened on first use, kept for the next request)."""
     if "db" not in g:
-        _keep_open(current_app)
-        g.db = connect(current_app.config["DATABASE"])
+        app = current_app._get_current_object()
+        pool = app.extensions.get(_POOL)
+        if pool is None:
+            pool = app.extensions.setdefault(_POOL, _ThreadConnections())
+        if pool.conn is None:
+            pool.conn = connect(app.config["DATABASE"])
+        g.db = pool.conn
     return g.db
 
 
 def close_db(_exc=None) -> None:
-    db = g.pop("db", None)
-    if db is not None:
-        db.close()
+    """End of request: leave the thread's connection idle, or drop it if it is not."""
+    conn = g.pop("db", None)
+    if conn is None or not conn.in_transaction:
+        return
+    try:
+        conn.execute("ROLLBACK")  # a transaction left open by an error path
+    except sqlite3.Error:
+        pool = current_app.extensions.get(_POOL)
+        if pool is not None and pool.conn is conn:
+            pool.conn = None
+        conn.close()
+
+
+def release(app) -> None:
+    """Close the app's kept connections (each thread opens a new one when it next needs it).
+
+    For maintenance and tests, e.g. before a disk is remounted read-only: a connection that
+    is open for writing stops that.
+    """
+    pool = app.extensions.pop(_POOL, None)
+    if pool is not None and pool.conn is not None:
+        pool.conn.close()
+    # The other threads' connections go with the pool's per-thread storage.
 
 
 def migrations() -> list[tuple[int, str, str]]:

@@ -142,10 +142,11 @@ def test_a_read_only_database_gives_a_clear_error_and_stores_nothing(small_disk,
     client = app.test_client()
     _checkpoint(app)
     files = [p for p in directory.iterdir() if p.name.startswith("clinic.sqlite3")]
+    # The app keeps its connections open between requests (storage.db.get_db): one opened
+    # before the change would still write, and a remount to read-only waits for none to be
+    # open for writing.
+    db.release(app)
     if small_disk is not None:
-        # The app keeps one idle connection open (storage.db._keep_open); a remount to
-        # read-only waits for no file to be open for writing.
-        db.release(app)
         assert _mount("-o", "remount,ro", str(small_disk))
     else:
         for path in files:

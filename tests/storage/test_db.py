@@ -81,9 +81,9 @@ def test_the_audit_log_is_append_only_and_hash_chained(conn):
     assert audit.verify(conn) == 2
 
 
-def test_the_app_keeps_one_idle_connection_so_a_request_closes_without_a_checkpoint(app):
-    """With no other connection open, closing the last one copies the log into the database
-    and deletes it; the app's idle connection spares each request that (storage.db)."""
+def test_a_thread_keeps_its_connection_idle_between_requests(app):
+    """Closing the last connection of a WAL database copies the log into the database and
+    deletes it, and a new connection reads the schema again: each thread keeps its own."""
     from pathlib import Path
 
     wal = Path(app.config["DATABASE"] + "-wal")
@@ -92,29 +92,34 @@ def test_the_app_keeps_one_idle_connection_so_a_request_closes_without_a_checkpo
         with db.write(conn):
             conn.execute("INSERT INTO users (username, role, password_hash, created_at)"
                          " VALUES ('probe', 'chw', 'h', 't')")
-    # The request's connection is closed; the log is still there, so no checkpoint ran.
-    assert wal.exists() and wal.stat().st_size > 0
-    keeper = app.extensions["clinic_app.storage.keeper"]
-    assert not keeper.in_transaction
-    db.release(app)
-    assert "clinic_app.storage.keeper" not in app.extensions
-    with pytest.raises(sqlite3.ProgrammingError):
-        keeper.execute("SELECT 1")  # closed
-    # The last connection closed: SQLite checkpointed and removed the log.
-    assert not wal.exists()
-
-
-def test_an_idle_connection_that_cannot_open_does_not_stop_the_request(app, monkeypatch):
-    real = db.connect
-    calls = []
-
-    def first_fails(path):
-        calls.append(path)
-        if len(calls) == 1:
-            raise sqlite3.OperationalError("unable to open database file")
-        return real(path)
-
-    monkeypatch.setattr(db, "connect", first_fails)
     with app.app_context():
-        assert db.get_db().execute("SELECT 1").fetchone()[0] == 1
-    assert len(calls) == 2 and "clinic_app.storage.keeper" not in app.extensions
+        assert db.get_db() is conn  # the same connection, idle in between
+        assert not conn.in_transaction
+    assert wal.exists() and wal.stat().st_size > 0  # not checkpointed by a close
+    other = []
+    thread = threading.Thread(target=lambda: other.append(_connection_in_app(app)))
+    thread.start()
+    thread.join()
+    assert other and other[0] is not conn  # another thread, another connection
+    db.release(app)
+    with pytest.raises(sqlite3.ProgrammingError):
+        conn.execute("SELECT 1")  # closed
+    with app.app_context():
+        assert db.get_db() is not conn
+
+
+def _connection_in_app(app):
+    with app.app_context():
+        return db.get_db()
+
+
+def test_a_transaction_left_open_is_rolled_back_at_the_end_of_the_request(app):
+    with app.app_context():
+        conn = db.get_db()
+        conn.execute("BEGIN IMMEDIATE")
+        conn.execute("INSERT INTO users (username, role, password_hash, created_at)"
+                     " VALUES ('left-open', 'chw', 'h', 't')")
+    assert not conn.in_transaction
+    with app.app_context():
+        found = db.get_db().execute("SELECT count(*) FROM users WHERE username = 'left-open'")
+        assert found.fetchone()[0] == 0
