@@ -118,8 +118,8 @@ const SIGN_TEXT = {
 export function renderSheet(s, t) {
   const T = (msgid, params) => esc(t(msgid, params));
   const out = [];
-  out.push(`<article class="page"><header class="head">${icon('hospital')}<div><h1>${T('Home care for your child')}</h1>`,
-    `<p class="meta">${s.clinic.name ? `${esc(s.clinic.name)} · ` : ''}${T('Seen on %(date)s', { date: s.seen_on })}</p></div></header>`);
+  out.push(`<article class="page"><header class="head">${icon('hospital')}<h1>${T('Home care for your child')}</h1>`,
+    `<p class="meta">${s.clinic.name ? `${esc(s.clinic.name)} · ` : ''}${T('Seen on %(date)s', { date: s.seen_on })}</p></header>`);
   if (s.refer === 'urgent') {
     out.push(`<section class="alert" role="alert"><span class="pics">${icon('warning', t('Warning'))}</span><div class="txt">`,
       `<p class="big">${T('Go to the hospital now.')}</p><p>${T('On the way, give small sips of ORS often. Keep breastfeeding.')}</p></div></section>`);
@@ -135,10 +135,10 @@ export function renderSheet(s, t) {
   out.push(`<section class="box give"><h2><span class="num">2</span> ${T('How much ORS to give')}</h2>`,
     `<p class="cupsize">${icon('cup')} ${T('Cup = %(ml)s', { ml: s.cup })}${s.small_child ? ` · ${icon('spoon')} ${T('Teaspoon = %(ml)s', { ml: s.spoon })}` : ''}</p>`);
   if (s.clinic_ors) {
-    out.push(`<div class="amount"><p class="label">${T('First %(hours)s hours (in the clinic):', { hours: s.clinic_ors.hours })}</p>`,
-      `<p><strong class="numeral">${esc(s.clinic_ors.total.ml)}</strong> · ${T('each hour about %(ml)s', { ml: s.clinic_ors.hourly.ml })} ${cupRow(s.clinic_ors.hourly, t)}</p></div>`);
+    out.push(`<p class="label">${T('First %(hours)s hours (in the clinic):', { hours: s.clinic_ors.hours })}</p>`,
+      `<p><strong class="numeral">${esc(s.clinic_ors.total.ml)}</strong> · ${T('each hour about %(ml)s', { ml: s.clinic_ors.hourly.ml })} ${cupRow(s.clinic_ors.hourly, t)}</p>`);
   }
-  out.push(`<div class="amount"><p class="label">${T('After each loose stool:')}</p>`);
+  out.push(`<p class="label">${T('After each loose stool:')}</p>`);
   if (s.per_stool) {
     const { low, high } = s.per_stool;
     out.push(`<p><strong class="numeral">${esc(low.ml)} – ${esc(high.ml)}</strong> ${cupRow(low, t)} – ${cupRow(high, t)} <span class="cupword">${T('%(low)s to %(high)s cups', { low: low.cups, high: high.cups })}</span></p>`);
@@ -148,7 +148,6 @@ export function renderSheet(s, t) {
   } else {
     out.push(`<p><strong>${T('As much as the child wants.')}</strong></p>`);
   }
-  out.push('</div>');
   if (s.home_ors) {
     const one = 'Take home %(n)s sachet. Give up to %(ml)s a day.';
     const many = 'Take home %(n)s sachets. Give up to %(ml)s a day.';
@@ -176,7 +175,7 @@ export function renderSheet(s, t) {
   const foot = [];
   if (s.clinic.name || s.clinic.phone) foot.push(`${icon('phone')} ${esc(s.clinic.name)}${s.clinic.phone ? ` · ${esc(s.clinic.phone)}` : ''}`);
   if (s.referral.name) foot.push(`${T('Referral: %(name)s', { name: s.referral.name })}${s.referral.phone ? ` · ${esc(s.referral.phone)}` : ''}`);
-  out.push(`<footer class="foot"><p>${foot.join(' · ')}</p><p class="caution">${T("Local protocols and the health worker's advice come first.")}</p>`,
+  out.push(`<footer class="foot">${foot.length ? `<p>${foot.join(' · ')}</p>` : ''}<p class="caution">${T("Local protocols and the health worker's advice come first.")}</p>`,
     `<p class="sources">${T('Sources: WHO/UNICEF ORS (S16), WHO 2005 home treatment (S02), IMCI (S04), zinc (S10). Keeping time of mixed ORS: see conflict C14.')}</p></footer></article>`);
   return out.join('\n');
 }
