@@ -14,6 +14,10 @@ In one run, on a throw-away database with one invented case:
 Value and baseline run in turns, so a busy machine slows both alike; the last line gives the
 same ratio in CPU time of this process, which other programs on the machine barely move.
 
+The sheet is rendered as the app renders it: polyglot markup parsed by expat, the sheet's
+small user-agent stylesheet, fonts, stylesheets and pictogram drawings kept between renders
+(see clinic_app/pdf.py); the baseline is WeasyPrint with its defaults, as anyone would call it.
+
 Targets: value / baseline <= 1.5; cached / baseline <= 0.05.
 Not part of the test run: ``.venv/bin/python bench/pdf_sheet.py [--runs N] [--lang xx]``.
 """
@@ -91,7 +95,7 @@ def median_seconds(*actions, runs: int, clock=time.perf_counter) -> list[float]:
 
 def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--runs", type=int, default=7)
+    parser.add_argument("--runs", type=int, default=15)
     parser.add_argument("--lang", default="en")
     args = parser.parse_args()
     with tempfile.TemporaryDirectory() as tmp:
@@ -120,8 +124,12 @@ def main() -> int:
         pages = weasyprint.HTML(string=plain_html, base_url=pdf.BASE_URL,
                                 url_fetcher=pdf.local_fetcher(app.static_folder)).render().pages
         assert len(pages) == 1, f"the baseline must be one page, not {len(pages)}"
-        plain()  # warm-up: imports WeasyPrint and its dependencies once
-        fresh()
+        # Warm-up, twice each: imports, parsed stylesheets and fonts, and the pictograms'
+        # recorded drawings (a drawing is recorded for the pen state it starts from, which can
+        # differ between the first render and the ones after it).
+        for _ in range(2):
+            plain()
+            fresh()
         baseline, value = median_seconds(plain, fresh, runs=args.runs)
         # The same in CPU time of this process: other programs on a shared machine barely
         # move it (it leaves out waiting for the disk).
