@@ -121,12 +121,18 @@ def serve_command(host, port, threads, use_tls):
     port = port or int(current_app.config["PORT"])
     conn = open_db()
     conn.close()
-    server = wsgi.Server((host, port), current_app._get_current_object(), numthreads=threads)
+    from clinic_app import serving
+
+    app = current_app._get_current_object()
+    server = wsgi.Server((host, port), app, numthreads=threads)
+    stop_backups = serving.start_daily_backups(app, click.echo)
     click.echo(f"Rehydration Desk serving on http://{host}:{port}  (Ctrl+C to stop)")
     try:
         server.start()
     except KeyboardInterrupt:
         server.stop()
+    finally:
+        stop_backups.set()
 
 
 def init_app(app) -> None:

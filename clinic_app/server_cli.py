@@ -201,23 +201,10 @@ def serve_tls(host: str | None, port: int | None, threads: int) -> None:
             server.prepare()
     except OSError as exc:
         raise click.ClickException(f"Cannot listen on {host}: {exc}") from None
-    stop = threading.Event()
     workers = [threading.Thread(target=s.serve, daemon=True) for s in servers]
-    workers.append(
-        threading.Thread(
-            target=serving.daily_backup_loop,
-            daemon=True,
-            args=(
-                cfg["DATABASE"],
-                backup_dir(),
-                cfg.get("CLOCK") or clock.system_now,
-                stop,
-                click.echo,
-            ),
-        )
-    )
     for worker in workers:
         worker.start()
+    stop = serving.start_daily_backups(app, click.echo)
     days = tls.days_until_expiry(paths.server_cert, clock.now())
     if days <= CERT_WARNING_DAYS:
         click.echo(f"Warning: the server certificate expires in {days} days; run 'tls renew'.")
@@ -226,7 +213,7 @@ def serve_tls(host: str | None, port: int | None, threads: int) -> None:
         f"{serving.origin(host, http_port, 'http')}/enrol)  Ctrl+C to stop"
     )
     try:
-        while any(w.is_alive() for w in workers[:2]):
+        while any(w.is_alive() for w in workers):
             workers[0].join(0.5)
     except KeyboardInterrupt:
         pass

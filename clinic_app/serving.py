@@ -17,6 +17,7 @@ import datetime as dt
 import errno
 import ipaddress
 import socket
+import threading
 from pathlib import Path
 
 from clinic_app import tls
@@ -154,3 +155,20 @@ def daily_backup_loop(db_path, backup_dir, now, stop, log, interval: float = 360
             log(f"Daily backup failed: {exc}")
         if stop.wait(interval):
             return
+
+
+def start_daily_backups(app, log) -> threading.Event:
+    """Run ``daily_backup_loop`` for ``app`` in a daemon thread (both ways of serving do).
+
+    The first check runs at once, so a server started after a day without one takes its backup
+    straight away. Set the returned event to stop the loop.
+    """
+    from clinic_app import clock
+
+    stop = threading.Event()
+    threading.Thread(
+        target=daily_backup_loop, daemon=True, name="daily-backup",
+        args=(app.config["DATABASE"], backup_dir(app), app.config.get("CLOCK") or clock.system_now,
+              stop, log),
+    ).start()
+    return stop

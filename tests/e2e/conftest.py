@@ -40,6 +40,7 @@ class LiveServer:
         self.url = f"http://127.0.0.1:{self.port}"
         self.log = workdir / "server.log"
         self.env = {**os.environ, "CLINIC_APP_DATABASE": str(workdir / "clinic.sqlite3"),
+                    "CLINIC_APP_BACKUP_DIR": str(workdir / "backups"),
                     "CLINIC_APP_SECRET_KEY": "browser-test-secret",
                     "CLINIC_APP_ARGON2_TIME_COST": "1", "CLINIC_APP_ARGON2_MEMORY_COST": "8",
                     "CLINIC_APP_ARGON2_PARALLELISM": "1", **(extra_env or {})}

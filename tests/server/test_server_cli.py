@@ -103,3 +103,36 @@ def test_serve_tls_refuses_an_address_this_machine_does_not_hold(runner):
 def test_serve_tls_refuses_to_start_without_a_certificate(runner):
     result = runner.invoke(args=["serve", "--tls", "--host", "127.0.0.1"])
     assert result.exit_code == 1 and "tls init --ip 127.0.0.1" in result.output
+
+
+def test_plain_serve_takes_the_daily_backup_too(app, runner, tmp_path, monkeypatch):
+    """The daily backup (the last 14 kept) runs under `serve` as under `serve --tls`."""
+    import time
+
+    from cheroot import wsgi
+
+    from clinic_app.storage.backup import daily_backups
+
+    backups = tmp_path / "daily"
+    app.config["BACKUP_DIR"] = str(backups)
+
+    class Server:  # stands for cheroot: "runs" until the first backup is there
+        def __init__(self, bind, wsgi_app, numthreads):
+            self.stopped = False
+
+        def start(self):
+            deadline = time.monotonic() + 20
+            while not daily_backups(backups) and time.monotonic() < deadline:
+                time.sleep(0.05)
+            raise KeyboardInterrupt
+
+        def stop(self):
+            self.stopped = True
+
+    monkeypatch.setattr(wsgi, "Server", Server)
+    result = runner.invoke(args=["serve", "--host", "127.0.0.1", "--port", "8099"])
+    assert result.exit_code == 0, result.output
+    [(_taken, path)] = daily_backups(backups)
+    check = sqlite3.connect(path)
+    assert check.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+    check.close()
