@@ -14,7 +14,7 @@ import pytest
 from clinic_app import pdf
 from clinic_app.web import sheets
 
-from .helpers import LANGUAGES, quick_sheet
+from .helpers import CHILD, LANGUAGES, quick_sheet
 
 needs_poppler = pytest.mark.skipif(shutil.which("pdftoppm") is None,
                                    reason="poppler-utils is not installed (make setup)")
@@ -45,9 +45,8 @@ def test_the_pdf_markup_of_every_language_takes_the_fast_parser(client, as_user,
                                                                lang):
     calls = pdf_calls(monkeypatch)
     token = as_user("nurse")
-    for child in (None, URGENT):
-        kwargs = {"child": child} if child else {}
-        assert quick_sheet(client, token, lang, fmt="pdf", **kwargs).status_code == 200
+    for child in (CHILD, URGENT):
+        assert quick_sheet(client, token, lang, fmt="pdf", child=child).status_code == 200
     assert len(calls) == 2
     for html, _root, _stylesheets, _zoom, user_agent in calls:
         assert pdf.xml_tree(html) is not None, "the sheet's markup is no longer well-formed XML"
@@ -55,13 +54,12 @@ def test_the_pdf_markup_of_every_language_takes_the_fast_parser(client, as_user,
 
 
 @needs_poppler
-@pytest.mark.parametrize(("lang", "size", "child"), [("en", "a4", None), ("ar", "letter", URGENT),
-                                                     ("hi", "a5", None)])
+@pytest.mark.parametrize(("lang", "size", "child"), [("en", "a4", CHILD), ("ar", "letter", URGENT),
+                                                     ("hi", "a5", CHILD)])
 def test_the_shortcuts_draw_the_same_page_as_weasyprint_itself(client, as_user, monkeypatch,
                                                                tmp_path, lang, size, child):
     calls = pdf_calls(monkeypatch)
-    kwargs = {"child": child} if child else {}
-    response = quick_sheet(client, as_user("nurse"), lang, fmt="pdf", size=size, **kwargs)
+    response = quick_sheet(client, as_user("nurse"), lang, fmt="pdf", size=size, child=child)
     assert response.status_code == 200
     [(html, static_root, stylesheets, zoom, user_agent)] = calls
     assert user_agent == sheets.USER_AGENT_SHEET
@@ -76,9 +74,8 @@ def test_the_small_user_agent_sheet_covers_every_element_of_the_sheet(client, as
                                                                       monkeypatch, app):
     calls = pdf_calls(monkeypatch)
     token = as_user("nurse")
-    for child in (None, URGENT):
-        kwargs = {"child": child} if child else {}
-        assert quick_sheet(client, token, "en", fmt="pdf", **kwargs).status_code == 200
+    for child in (CHILD, URGENT):
+        assert quick_sheet(client, token, "en", fmt="pdf", child=child).status_code == 200
     used = {element.tag for html, *_ in calls for element in pdf.xml_tree(html).iter()}
     ua = (Path(app.static_folder) / sheets.USER_AGENT_SHEET).read_text(encoding="utf-8")
     displayed = set()
